@@ -1,0 +1,59 @@
+// Ratchet: the repository root is Nuxt's source folder (pages/, components/, server/ … at the top).
+export default defineNuxtConfig({
+  compatibilityDate: '2026-11-01',
+  srcDir: '.',
+  dir: { app: 'app' },
+  telemetry: false,
+  devtools: { enabled: false },
+  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils', '@vueuse/nuxt', '@nuxt/eslint'],
+  tailwindcss: {
+    cssPath: '~/assets/css/main.css',
+    configPath: '~~/tailwind.config.ts',
+    exposeConfig: false,
+    viewer: false,
+  },
+  app: {
+    head: {
+      htmlAttrs: { lang: 'en' },
+      title: 'Ratchet',
+      meta: [
+        { name: 'viewport', content: 'width=device-width, initial-scale=1' },
+        { name: 'description', content: 'Targets, readings and fixes for teams that build hardware in iterations.' },
+      ],
+      link: [{ rel: 'icon', type: 'image/svg+xml', href: '/favicon.svg' }],
+    },
+  },
+  runtimeConfig: {
+    // Overridden at run time by NUXT_DATABASE_URL (or DATABASE_URL, read in server/utils/db.ts).
+    databaseUrl: '',
+    appUrl: 'http://127.0.0.1:3000',
+    smtp: {
+      host: '127.0.0.1',
+      port: 1025,
+      secure: false,
+      user: '',
+      pass: '',
+      from: 'Ratchet <ratchet@localhost>',
+    },
+    auth: {
+      // Trust X-Forwarded-For for the client address (only behind a proxy you run).
+      trustProxy: false,
+      failuresPerAddress: 5,
+      failuresPerIp: 100,
+      windowMinutes: 15,
+    },
+    session: {
+      maxAge: 60 * 60 * 24 * 14,
+      cookie: { secure: true, sameSite: 'lax' },
+    },
+  },
+  nitro: {
+    experimental: { tasks: false },
+  },
+  typescript: {
+    strict: true,
+  },
+  eslint: {
+    config: { stylistic: false },
+  },
+})

@@ -1,0 +1,66 @@
+# Helpers to start and stop the project's servers from a script. Sourced, not run.
+# Each started process is tracked by PID and stopped by stop_services (call it from a trap).
+RATCHET_PIDS=()
+
+# wait_http URL [seconds]: poll until the URL answers
+wait_http() {
+  local url="$1" secs="${2:-60}" i
+  for ((i = 0; i < secs * 5; i++)); do
+    if node -e "fetch(process.argv[1]).then(r=>process.exit(r.status<500||r.status===503?0:1)).catch(()=>process.exit(1))" "$url" 2>/dev/null; then
+      return 0
+    fi
+    sleep 0.2
+  done
+  echo "timed out waiting for $url" >&2
+  return 1
+}
+
+# start_maildev SMTP_PORT WEB_PORT DIR
+start_maildev() {
+  mkdir -p "$3"
+  setsid node "$ROOT/node_modules/maildev/dist/bin/maildev.js" \
+    --smtp "$1" --ip 127.0.0.1 --web "$2" --web-ip 127.0.0.1 \
+    --mail-directory "$3" --silent >"$3/../maildev.log" 2>&1 &
+  RATCHET_PIDS+=($!)
+  MAILDEV_PID=$!
+  wait_http "http://127.0.0.1:$2/api/healthz" 30
+}
+
+# start_app PORT LOGFILE: the built server, with the environment already exported
+start_app() {
+  HOST=127.0.0.1 PORT="$1" setsid node "$ROOT/.output/server/index.mjs" >"$2" 2>&1 &
+  RATCHET_PIDS+=($!)
+  APP_PID=$!
+  wait_http "http://127.0.0.1:$1/api/health" 60
+}
+
+stop_services() {
+  local pid
+  for pid in "${RATCHET_PIDS[@]}"; do
+    kill -TERM -- "-$pid" 2>/dev/null || kill -TERM "$pid" 2>/dev/null || true
+  done
+  for pid in "${RATCHET_PIDS[@]}"; do
+    for _ in $(seq 1 25); do kill -0 "$pid" 2>/dev/null || break; sleep 0.2; done
+    kill -KILL -- "-$pid" 2>/dev/null || true
+  done
+  RATCHET_PIDS=()
+}
+
+# ensure_deps: npm ci when node_modules is missing or older than the lock file
+ensure_deps() {
+  if [ ! -f "$ROOT/node_modules/.package-lock.json" ] || [ "$ROOT/package-lock.json" -nt "$ROOT/node_modules/.package-lock.json" ]; then
+    echo "== installing npm packages (npm ci)"
+    (cd "$ROOT" && npm ci --no-audit --no-fund)
+  fi
+}
+
+# session_secret FILE: a stable random secret kept in an ignored file
+session_secret() {
+  local f="$1"
+  if [ ! -s "$f" ]; then
+    mkdir -p "$(dirname "$f")"
+    node -e "process.stdout.write(require('crypto').randomBytes(32).toString('hex'))" >"$f"
+    chmod 600 "$f"
+  fi
+  cat "$f"
+}

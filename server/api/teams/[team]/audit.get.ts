@@ -1,0 +1,18 @@
+import { z } from 'zod'
+
+const Query = z.object({
+  page: z.coerce.number().int().min(1).max(10_000).default(1),
+  perPage: z.coerce.number().int().min(1).max(200).default(50),
+})
+
+export default defineEventHandler(async (event) => {
+  const { team } = await requireTeamRole(event, getRouterParam(event, 'team')!, 'owner')
+  const { page, perPage } = queryAs(event, Query)
+  const db = useDb()
+  const [rows, count] = await Promise.all([
+    db('audit_log').where({ team_id: team.id }).orderBy('id', 'desc').limit(perPage).offset((page - 1) * perPage)
+      .select('id', 'action', 'actor_label as actor', 'detail', 'ip', 'user_agent as userAgent', 'at'),
+    db('audit_log').where({ team_id: team.id }).count({ total: '*' }).first(),
+  ])
+  return { page, perPage, total: Number(count?.total ?? 0), entries: rows }
+})

@@ -1,0 +1,9 @@
+import { z } from 'zod'
+import { nameField, slugField } from './accountSchemas'
+
+export const BuildBody = z.object({
+  team: z.string({ error: 'Name the team (its id or slug)' }).min(1, 'Name the team (its id or slug)').max(80),
+  name: nameField,
+  slug: slugField.optional(),
+  summary: z.string().trim().max(2000, 'A summary has at most 2,000 characters').optional(),
+})

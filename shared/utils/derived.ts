@@ -1,0 +1,401 @@
+// Derived targets: a formula over other targets' keys, checked for dimension against the
+// target's unit and evaluated in SI, with its uncertainty propagated to first order
+// (GUM JCGM 100:2008, 5.1.2 eq. 10, inputs taken as uncorrelated).
+//
+// Formulas carry no units of their own: every key stands for its target's value in SI, so a
+// formula evaluated on SI values gives the result in the coherent SI unit of its dimension.
+// Angles count as dimensionless, as in SI (rad = 1): torque × angular speed is a power.
+
+import type { ConstantNode, FunctionNode, MathNode, OperatorNode, ParenthesisNode, SymbolNode } from 'mathjs'
+import { math, parseUnit, QUANTITY_LABELS, SI_UNIT, unitForMath, UnitError } from './units'
+import type { Quantity } from './units'
+
+export type FormulaErrorCode = 'syntax' | 'unknown-key' | 'dimension' | 'cycle' | 'evaluate'
+
+export class FormulaError extends Error {
+  readonly code: FormulaErrorCode
+  /** The keys the message is about: unknown keys, or the cycle's path. */
+  readonly keys: string[]
+
+  constructor(code: FormulaErrorCode, message: string, keys: string[] = []) {
+    super(message)
+    this.name = 'FormulaError'
+    this.code = code
+    this.keys = keys
+  }
+}
+
+/** Functions a formula may call, each with one argument; all are differentiable by mathjs. */
+const FUNCTIONS = ['sqrt', 'abs', 'sin', 'cos', 'tan', 'exp', 'log', 'log10'] as const
+const CONSTANTS = ['pi'] as const
+const OPERATORS = new Set(['add', 'subtract', 'multiply', 'divide', 'pow', 'unaryMinus', 'unaryPlus'])
+const MAX_LENGTH = 500
+
+type FunctionName = typeof FUNCTIONS[number]
+const isFunctionName = (name: string): name is FunctionName => (FUNCTIONS as readonly string[]).includes(name)
+const isConstant = (name: string) => (CONSTANTS as readonly string[]).includes(name)
+
+const ALLOWED = `numbers, target keys, + − * / ^, parentheses, ${CONSTANTS.join(', ')} and ${FUNCTIONS.map(f => `${f}()`).join(', ')}`
+
+interface Parsed {
+  node: MathNode
+  symbols: string[]
+}
+
+/** Typed forms people paste from documents, folded to what the parser reads. */
+function normalizeFormula(formula: string): string {
+  return formula
+    .replace(/[·×⋅∙]/g, '*')
+    .replace(/[−–]/g, '-')
+    .replace(/²/g, '^2')
+    .replace(/³/g, '^3')
+}
+
+function parse(formula: string): Parsed {
+  const text = normalizeFormula(String(formula ?? '')).trim()
+  if (text === '') throw new FormulaError('syntax', 'The formula is empty')
+  if (text.length > MAX_LENGTH) throw new FormulaError('syntax', `The formula is longer than ${MAX_LENGTH} characters`)
+  let node: MathNode
+  try {
+    node = math.parse(text)
+  }
+  catch (e) {
+    throw new FormulaError('syntax', `The formula has a syntax error: ${(e as Error).message}`)
+  }
+  const symbols = new Set<string>()
+  check(node, symbols)
+  return { node, symbols: [...symbols] }
+}
+
+/** Walks the tree and refuses anything outside the small grammar formulas are allowed. */
+function check(node: MathNode, symbols: Set<string>): void {
+  const refuse = (what: string): never => {
+    throw new FormulaError('syntax', `The formula can't contain ${what}; it may use ${ALLOWED}`)
+  }
+  switch (node.type) {
+    case 'ConstantNode': {
+      const value = (node as ConstantNode).value
+      if (typeof value !== 'number' || !Number.isFinite(value)) refuse(`the value ${JSON.stringify(value)}`)
+      return
+    }
+    case 'SymbolNode': {
+      const name = (node as SymbolNode).name
+      if (isFunctionName(name)) refuse(`${name} without parentheses`)
+      if (!isConstant(name)) symbols.add(name)
+      return
+    }
+    case 'ParenthesisNode':
+      return check((node as ParenthesisNode).content, symbols)
+    case 'OperatorNode': {
+      const op = node as OperatorNode
+      if (!OPERATORS.has(op.fn)) refuse(`the operator "${op.op}"`)
+      for (const arg of op.args) check(arg, symbols)
+      return
+    }
+    case 'FunctionNode': {
+      const fn = node as FunctionNode
+      const name = fn.fn.type === 'SymbolNode' ? (fn.fn as SymbolNode).name : ''
+      if (!isFunctionName(name)) refuse(`the function ${name || fn.fn.toString()}()`)
+      if (fn.args.length !== 1) throw new FormulaError('syntax', `${name}() takes exactly one argument`)
+      return check(fn.args[0]!, symbols)
+    }
+    case 'AssignmentNode':
+    case 'FunctionAssignmentNode':
+      return refuse('an assignment')
+    default:
+      return refuse(`"${node.toString()}"`)
+  }
+}
+
+/** Parses a formula and lists the target keys it uses (in order of first use). */
+export function parseFormula(formula: string): { symbols: string[] } {
+  return { symbols: parse(formula).symbols }
+}
+
+// ---------------------------------------------------------------------------------------
+// Dimensions. Each input stands for one SI unit of its quantity; the tree is evaluated on
+// dimension vectors (mathjs base dimensions, angle dropped), so a mismatch inside the
+// formula can be reported with the two sides that disagree.
+
+type Dims = number[]
+const BASE = math.Unit.BASE_DIMENSIONS as string[]
+const ANGLE = BASE.indexOf('ANGLE')
+const SYMBOL: Record<string, string> = {
+  MASS: 'kg', LENGTH: 'm', TIME: 's', CURRENT: 'A', TEMPERATURE: 'K',
+  LUMINOUS_INTENSITY: 'cd', AMOUNT_OF_SUBSTANCE: 'mol', BIT: 'bit',
+}
+const NONE: Dims = BASE.map(() => 0)
+
+function dimsOfUnit(unit: string): Dims {
+  const dims = [...math.unit(1, unitForMath(unit)).dimensions]
+  if (ANGLE >= 0) dims[ANGLE] = 0
+  return dims
+}
+
+const QUANTITY_DIMS = (Object.keys(SI_UNIT) as Quantity[]).map(q => ({ quantity: q, dims: dimsOfUnit(SI_UNIT[q]) }))
+const dimsOfQuantity = (q: Quantity) => QUANTITY_DIMS.find(d => d.quantity === q)!.dims
+
+const sameDims = (a: Dims, b: Dims) => a.every((x, i) => Math.abs(x - b[i]!) < 1e-9)
+const isNone = (a: Dims) => sameDims(a, NONE)
+
+function superscript(n: number): string {
+  if (!Number.isInteger(n)) return `^${Number(n.toPrecision(6))}`
+  const digits = '⁰¹²³⁴⁵⁶⁷⁸⁹'
+  return n === 1 ? '' : String(n).replace(/\d/g, d => digits[Number(d)]!).replace('-', '⁻')
+}
+
+/** "power (W)", "energy or torque (J)", or base units such as "kg·m/s³" when nothing matches. */
+function describe(dims: Dims): string {
+  const names = QUANTITY_DIMS.filter(d => sameDims(d.dims, dims))
+    // An angle is dimensionless here; name it only when nothing better fits.
+    .filter((d, _, all) => d.quantity !== 'angle' || all.length === 1)
+  if (names.length > 0) {
+    return `${names.map(d => QUANTITY_LABELS[d.quantity]).join(' or ')} (${SI_UNIT[names[0]!.quantity]})`
+  }
+  const part = (sign: 1 | -1) => BASE
+    .map((b, i) => ({ sym: SYMBOL[b], exp: sign * dims[i]! }))
+    .filter(p => p.sym && p.exp > 0)
+    .map(p => `${p.sym}${superscript(p.exp)}`)
+    .join('·')
+  const top = part(1) || '1'
+  const bottom = part(-1)
+  return bottom ? `${top}/${bottom}` : top
+}
+
+function dimsOf(node: MathNode, inputs: Record<string, Dims>): Dims {
+  switch (node.type) {
+    case 'ConstantNode':
+      return NONE
+    case 'SymbolNode': {
+      const name = (node as SymbolNode).name
+      return isConstant(name) ? NONE : inputs[name]!
+    }
+    case 'ParenthesisNode':
+      return dimsOf((node as ParenthesisNode).content, inputs)
+    case 'FunctionNode': {
+      const fn = node as FunctionNode
+      const name = (fn.fn as SymbolNode).name
+      const arg = dimsOf(fn.args[0]!, inputs)
+      if (name === 'sqrt') return arg.map(x => x / 2)
+      if (name === 'abs') return arg
+      if (!isNone(arg)) {
+        throw new FormulaError('dimension', `${name}() needs a dimensionless argument, but ${fn.args[0]!.toString()} is ${describe(arg)}`)
+      }
+      return NONE
+    }
+    default: {
+      const op = node as OperatorNode
+      const [a, b] = op.args.map(arg => dimsOf(arg, inputs))
+      switch (op.fn) {
+        case 'unaryMinus':
+        case 'unaryPlus':
+          return a!
+        case 'multiply':
+          return a!.map((x, i) => x + b![i]!)
+        case 'divide':
+          return a!.map((x, i) => x - b![i]!)
+        case 'add':
+        case 'subtract':
+          if (!sameDims(a!, b!)) {
+            throw new FormulaError(
+              'dimension',
+              `The formula ${op.fn === 'add' ? 'adds' : 'subtracts'} ${describe(b!)} ${op.fn === 'add' ? 'to' : 'from'} ${describe(a!)} in ${op.toString()}`,
+            )
+          }
+          return a!
+        default: { // pow
+          const [base, exponent] = op.args
+          if (!isNone(b!)) throw new FormulaError('dimension', `The exponent in ${op.toString()} must be dimensionless`)
+          if (isNone(a!)) return NONE
+          if (symbolsOf(exponent!).length > 0) {
+            throw new FormulaError('dimension', `${base!.toString()} has a unit, so its exponent in ${op.toString()} must be a plain number`)
+          }
+          const power = exponent!.compile().evaluate({}) as unknown
+          if (typeof power !== 'number' || !Number.isFinite(power)) {
+            throw new FormulaError('evaluate', `Can't evaluate the exponent in ${op.toString()}`)
+          }
+          return a!.map(x => x * power)
+        }
+      }
+    }
+  }
+}
+
+function symbolsOf(node: MathNode): string[] {
+  const found = new Set<string>()
+  check(node, found)
+  return [...found]
+}
+
+/** The quantity a display unit measures, as a FormulaError when the unit is not known. */
+function quantityOf(unit: string, whose: string): Quantity {
+  try {
+    return parseUnit(unit).quantity
+  }
+  catch (e) {
+    if (e instanceof UnitError) throw new FormulaError('dimension', `${whose}: ${e.message}`)
+    throw e
+  }
+}
+
+function checkParsed(parsed: Parsed, inputs: Record<string, { unit: string }>, resultUnit: string): void {
+  const unknown = parsed.symbols.filter(s => !Object.hasOwn(inputs, s))
+  if (unknown.length > 0) {
+    const list = unknown.map(k => `"${k}"`).join(', ')
+    throw new FormulaError(
+      'unknown-key',
+      unknown.length === 1
+        ? `The formula uses ${list}, which is not a target of this build`
+        : `The formula uses ${list}, which are not targets of this build`,
+      unknown,
+    )
+  }
+  const dims: Record<string, Dims> = {}
+  for (const key of parsed.symbols) dims[key] = dimsOfQuantity(quantityOf(inputs[key]!.unit, `Target "${key}"`))
+  const target = quantityOf(resultUnit, 'This target')
+  const gives = dimsOf(parsed.node, dims)
+  if (!sameDims(gives, dimsOfQuantity(target))) {
+    throw new FormulaError(
+      'dimension',
+      `The formula gives ${describe(gives)} but this target is measured in ${QUANTITY_LABELS[target]} (${parseUnit(resultUnit).unit})`,
+    )
+  }
+}
+
+/**
+ * Refuses a formula that uses keys missing from `inputs` or whose dimension differs from that
+ * of `resultUnit`. `inputs` maps each available target key to its display unit.
+ */
+export function checkFormula(
+  formula: string,
+  inputs: Record<string, { unit: string }>,
+  resultUnit: string,
+): { symbols: string[] } {
+  const parsed = parse(formula)
+  checkParsed(parsed, inputs, resultUnit)
+  return { symbols: parsed.symbols }
+}
+
+/**
+ * A cycle in the graph of target key → keys its formula uses, as a path that starts and ends
+ * on the same key (e.g. ['power', 'torque', 'power']), or null. Keys that are not in the graph
+ * are measured targets and end a path.
+ */
+export function findCycle(graph: Record<string, readonly string[]>): string[] | null {
+  const state = new Map<string, 'open' | 'done'>()
+  const path: string[] = []
+
+  const visit = (key: string): string[] | null => {
+    if (state.get(key) === 'done') return null
+    if (state.get(key) === 'open') return [...path.slice(path.indexOf(key)), key]
+    state.set(key, 'open')
+    path.push(key)
+    for (const next of Object.hasOwn(graph, key) ? graph[key]! : []) {
+      const cycle = visit(next)
+      if (cycle) return cycle
+    }
+    path.pop()
+    state.set(key, 'done')
+    return null
+  }
+
+  for (const key of Object.keys(graph).sort()) {
+    const cycle = visit(key)
+    if (cycle) return cycle
+  }
+  return null
+}
+
+/** Throws FormulaError 'cycle' naming the path when formulas refer to each other in a circle. */
+export function assertNoCycle(graph: Record<string, readonly string[]>): void {
+  const cycle = findCycle(graph)
+  if (cycle) {
+    throw new FormulaError(
+      'cycle',
+      cycle.length === 2
+        ? `The formula of "${cycle[0]}" uses "${cycle[0]}" itself`
+        : `The formulas refer to each other in a circle: ${cycle.join(' → ')}`,
+      cycle,
+    )
+  }
+}
+
+export interface DerivedInput {
+  /** The input target's value in SI. */
+  mean: number
+  /** Its standard uncertainty in SI, or null when it has none. */
+  u: number | null
+  /** Its display unit (for the dimension check). */
+  unit: string
+}
+
+export interface DerivedValue {
+  /** In the SI unit of the result's quantity. */
+  mean: number
+  /** Combined standard uncertainty in SI; null only when no input has an uncertainty. */
+  u: number | null
+  /** ∂f/∂xᵢ at the inputs' means, in SI (sensitivity coefficients cᵢ of GUM 5.1.3). */
+  partials: Record<string, number>
+}
+
+function evaluateNumber(node: MathNode, scope: Record<string, number>): number {
+  let value: unknown
+  try {
+    value = node.compile().evaluate({ ...scope })
+  }
+  catch {
+    value = Number.NaN
+  }
+  // A division by zero gives ±Infinity, a square root or logarithm of a negative a Complex.
+  return typeof value === 'number' && Number.isFinite(value) ? value : Number.NaN
+}
+
+/**
+ * Evaluates a derived target from its inputs (all in SI) and propagates their standard
+ * uncertainties: u_c² = Σ (∂f/∂xᵢ)² u²(xᵢ) (GUM eq. 10). The partial derivatives are exact
+ * symbolic derivatives (mathjs `derivative`) evaluated at the means. Every key the formula
+ * uses must be present in `inputs`; a revision missing one of them has no derived value.
+ */
+export function evaluateDerived(
+  formula: string,
+  inputs: Record<string, DerivedInput>,
+  resultUnit: string,
+): DerivedValue {
+  const parsed = parse(formula)
+  checkParsed(parsed, inputs, resultUnit)
+
+  const scope: Record<string, number> = {}
+  for (const key of parsed.symbols) {
+    const { mean, u } = inputs[key]!
+    if (!Number.isFinite(mean)) throw new FormulaError('evaluate', `Can't evaluate the formula: "${key}" has no value`)
+    if (u !== null && !(Number.isFinite(u) && u >= 0)) {
+      throw new FormulaError('evaluate', `Can't evaluate the formula: the uncertainty of "${key}" is not a non-negative number`)
+    }
+    scope[key] = mean
+  }
+
+  const mean = evaluateNumber(parsed.node, scope)
+  if (Number.isNaN(mean)) {
+    throw new FormulaError(
+      'evaluate',
+      `Can't evaluate the formula with these values (a division by zero, or a result that is not a finite real number)`,
+    )
+  }
+
+  const partials: Record<string, number> = {}
+  let variance = 0
+  let anyU = false
+  for (const key of parsed.symbols) {
+    const u = inputs[key]!.u
+    const c = evaluateNumber(math.derivative(parsed.node, key, { simplify: false }), scope)
+    partials[key] = c
+    if (u === null) continue
+    anyU = true
+    if (u === 0) continue
+    if (Number.isNaN(c)) {
+      throw new FormulaError('evaluate', `Can't propagate the uncertainty: the formula's rate of change with "${key}" is not finite at these values`)
+    }
+    variance += (c * u) ** 2
+  }
+  return { mean, u: anyU ? Math.sqrt(variance) : null, partials }
+}

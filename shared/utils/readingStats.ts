@@ -1,0 +1,181 @@
+// Statistics of a reading as the product pins them: mean, sample standard deviation, Type A
+// and Type B standard uncertainties, their combination, the Welch–Satterthwaite effective
+// degrees of freedom and the 95 % interval for the mean; and Welch's test between readings.
+
+import jStat from 'jstat'
+
+export interface ReadingStats {
+  n: number
+  mean: number
+  /** Sample standard deviation (denominator n − 1); null when n = 1. */
+  sd: number | null
+  /** Type A standard uncertainty sd/√n; null when n = 1. */
+  uA: number | null
+  /** Type B standard uncertainty from the resolution, δ/√12; null without a resolution. */
+  uB: number | null
+  /** Combined standard uncertainty √(uA² + uB²); null when neither exists. */
+  u: number | null
+  /** Effective degrees of freedom; Infinity when only Type B remains (or uA = 0). */
+  nuEff: number | null
+  /** Coverage factor t(0.975, ν_eff). */
+  k: number | null
+  ci95: [number, number] | null
+}
+
+export const MAX_SAMPLES = 10_000
+
+/** Two-sided 95 % normal quantile, the limit of t(0.975, ν) as ν → ∞. */
+export const Z_975 = 1.959963984540054
+
+// Above this, jstat's inverse loses accuracy (it drifts by 10⁻³ at ν = 10⁹); the
+// Cornish–Fisher expansion below is exact to double precision there.
+const LARGE_NU = 1e5
+
+/** Quantile of Student's t with ν (real, > 0) degrees of freedom; ν = Infinity gives the normal. */
+export function tQuantile(p: number, nu: number): number {
+  if (!(p > 0 && p < 1)) throw new RangeError('tQuantile: p must lie strictly between 0 and 1')
+  if (!(nu > 0)) throw new RangeError('tQuantile: degrees of freedom must be positive')
+  if (p === 0.975 && nu === Infinity) return Z_975
+  const z = p === 0.975 ? Z_975 : jStat.normal.inv(p, 0, 1)
+  if (nu === Infinity) return z
+  if (nu <= LARGE_NU) return jStat.studentt.inv(p, nu)
+  // Abramowitz & Stegun 26.7.5, four terms.
+  const g1 = (z ** 3 + z) / 4
+  const g2 = (5 * z ** 5 + 16 * z ** 3 + 3 * z) / 96
+  const g3 = (3 * z ** 7 + 19 * z ** 5 + 17 * z ** 3 - 15 * z) / 384
+  const g4 = (79 * z ** 9 + 776 * z ** 7 + 1482 * z ** 5 - 1920 * z ** 3 - 945 * z) / 92160
+  return z + g1 / nu + g2 / nu ** 2 + g3 / nu ** 3 + g4 / nu ** 4
+}
+
+/**
+ * Welch–Satterthwaite (GUM G.4.1): ν_eff = u⁴ / Σ(uᵢ⁴/νᵢ), u² = Σuᵢ². Components with
+ * infinite ν contribute nothing to the denominator; if all do (or all uᵢ with finite ν are 0),
+ * ν_eff is Infinity.
+ */
+export function welchSatterthwaite(components: readonly { u: number; nu: number }[]): number {
+  let u2 = 0
+  let denominator = 0
+  for (const { u, nu } of components) {
+    if (!(u >= 0) || !(nu > 0)) throw new RangeError('welchSatterthwaite: u must be ≥ 0 and ν > 0')
+    u2 += u * u
+    if (Number.isFinite(nu)) denominator += (u * u) ** 2 / nu
+  }
+  return denominator === 0 ? Infinity : (u2 * u2) / denominator
+}
+
+function checkValues(values: readonly number[]): void {
+  if (!Array.isArray(values) || values.length < 1) throw new RangeError('A reading needs at least one value')
+  if (values.length > MAX_SAMPLES) throw new RangeError(`A reading holds at most ${MAX_SAMPLES} values`)
+  values.forEach((v, i) => {
+    if (typeof v !== 'number' || !Number.isFinite(v)) {
+      throw new RangeError(`Value ${i + 1} is not a finite number`)
+    }
+  })
+}
+
+function checkResolution(resolution: number | null | undefined): number {
+  if (resolution == null) return 0
+  if (typeof resolution !== 'number' || !Number.isFinite(resolution) || resolution < 0) {
+    throw new RangeError('The resolution must be a finite number ≥ 0')
+  }
+  return resolution
+}
+
+/**
+ * Mean and sum of squared deviations, numerically stable: the mean is taken as a first
+ * estimate corrected by the mean residual, and the squared deviations carry the same
+ * correction (the "corrected two-pass" algorithm), so a large common offset costs no digits.
+ */
+function meanAndSS(values: readonly number[]): { mean: number; ss: number } {
+  const n = values.length
+  const shift = values[0]!
+  let sum = 0
+  for (const v of values) sum += v - shift
+  let mean = shift + sum / n
+  let sd1 = 0
+  let sd2 = 0
+  for (const v of values) {
+    const d = v - mean
+    sd1 += d
+    sd2 += d * d
+  }
+  mean += sd1 / n
+  return { mean, ss: Math.max(0, sd2 - (sd1 * sd1) / n) }
+}
+
+/**
+ * Statistics of one reading. `resolution` is the instrument resolution δ in the same unit as
+ * the values; 0 or null means none.
+ */
+export function computeStats(values: readonly number[], resolution?: number | null): ReadingStats {
+  checkValues(values)
+  const delta = checkResolution(resolution)
+  const n = values.length
+  const { mean, ss } = meanAndSS(values)
+
+  const sd = n > 1 ? Math.sqrt(ss / (n - 1)) : null
+  const uA = sd === null ? null : sd / Math.sqrt(n)
+  // GUM F.2.2.1: a reading known only to the resolution δ lies in ±δ/2, rectangular.
+  const uB = delta > 0 ? delta / Math.sqrt(12) : null
+
+  if (uA === null && uB === null) {
+    return { n, mean, sd, uA, uB, u: null, nuEff: null, k: null, ci95: null }
+  }
+  const u = Math.sqrt((uA ?? 0) ** 2 + (uB ?? 0) ** 2)
+  let nuEff: number
+  if (uA === null) nuEff = Infinity
+  else if (uB === null) nuEff = n - 1
+  else nuEff = welchSatterthwaite([{ u: uA, nu: n - 1 }, { u: uB, nu: Infinity }])
+  const k = tQuantile(0.975, nuEff)
+  const half = k * u
+  return { n, mean, sd, uA, uB, u, nuEff, k, ci95: [mean - half, mean + half] }
+}
+
+export interface SampleSummary {
+  n: number
+  mean: number
+  sd: number
+}
+
+/**
+ * Welch's two-sample t-test of a against b: t = (mean_a − mean_b)/√(s_a²/n_a + s_b²/n_b),
+ * Welch–Satterthwaite degrees of freedom, two-sided p. Both sides need n ≥ 2. When both
+ * standard deviations are 0 the test degenerates: equal means give t = 0, p = 1, otherwise
+ * t = ±Infinity, p = 0; df is then n_a + n_b − 2.
+ */
+export function welchTest(a: SampleSummary, b: SampleSummary): { t: number; df: number; p: number } {
+  for (const [name, s] of [['first', a], ['second', b]] as const) {
+    if (!Number.isInteger(s.n) || s.n < 2) throw new RangeError(`welchTest: the ${name} sample needs n ≥ 2`)
+    if (!Number.isFinite(s.mean) || !Number.isFinite(s.sd) || s.sd < 0) {
+      throw new RangeError(`welchTest: the ${name} sample needs a finite mean and sd ≥ 0`)
+    }
+  }
+  const va = (a.sd * a.sd) / a.n
+  const vb = (b.sd * b.sd) / b.n
+  const diff = a.mean - b.mean
+  if (va + vb === 0) {
+    const df = a.n + b.n - 2
+    return diff === 0 ? { t: 0, df, p: 1 } : { t: diff > 0 ? Infinity : -Infinity, df, p: 0 }
+  }
+  const t = diff / Math.sqrt(va + vb)
+  const df = welchSatterthwaite([{ u: Math.sqrt(va), nu: a.n - 1 }, { u: Math.sqrt(vb), nu: b.n - 1 }])
+  const p = Math.min(1, 2 * jStat.studentt.cdf(-Math.abs(t), df))
+  return { t, df, p }
+}
+
+/**
+ * Several readings of one target on one revision pooled into one sample set: the values are
+ * concatenated and treated as one reading. The resolution used is the largest among the
+ * readings (the coarsest instrument bounds them all); readings without one add none.
+ * Values must already be in one unit.
+ */
+export function pooledStats(readings: readonly { values: readonly number[]; resolution?: number | null }[]): ReadingStats {
+  if (readings.length === 0) throw new RangeError('pooledStats: no readings to pool')
+  const values: number[] = []
+  let resolution = 0
+  for (const r of readings) {
+    values.push(...r.values)
+    resolution = Math.max(resolution, checkResolution(r.resolution))
+  }
+  return computeStats(values, resolution)
+}
