@@ -1,3 +1,4 @@
+import { readdirSync } from 'node:fs'
 import knex, { type Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { knexConfig } from '../../knexfile'
@@ -15,7 +16,19 @@ describe('migrations on a scratch database', () => {
   let db: Knex
   beforeAll(() => {
     const config = knexConfig(SCRATCH_DATABASE_URL)
-    db = knex({ ...config, migrations: { ...config.migrations, directory: `${ROOT}migrations` } })
+    // knex's own loader can't import .ts here; hand it the files through the test runner's import
+    const files = readdirSync(`${ROOT}migrations`).filter(f => f.endsWith('.ts')).sort()
+    db = knex({
+      ...config,
+      migrations: {
+        tableName: 'knex_migrations',
+        migrationSource: {
+          getMigrations: async () => files,
+          getMigrationName: (f: string) => f,
+          getMigration: (f: string) => import(`../../migrations/${f.replace(/\.ts$/, '')}.ts`),
+        },
+      },
+    })
   })
   afterAll(async () => { await db.destroy() })
 
