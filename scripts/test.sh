@@ -15,6 +15,14 @@ MAIL_WEB_PORT="${RATCHET_TEST_MAIL_WEB_PORT:-1180}"
 START=$(date +%s)
 step() { echo; echo "== $1 ($(( $(date +%s) - START ))s)"; }
 
+# one run at a time per checkout: runs share .output and the test cluster
+mkdir -p .data
+exec 9>.data/test.lock
+if ! flock -n 9; then
+  echo "another npm test is running in this checkout; waiting for it…"
+  flock 9
+fi
+
 cleanup() { stop_services; bash scripts/db.sh stop || true; }
 trap cleanup EXIT
 trap 'exit 130' INT TERM

@@ -1,6 +1,6 @@
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
-import type { Role } from '#shared/types/roles'
+import type { Role } from '#shared/utils/roles'
 
 export function assertPasswordAcceptable(password: string) {
   if (isCommonPassword(password)) {

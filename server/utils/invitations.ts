@@ -1,7 +1,7 @@
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
-import type { Role } from '#shared/types/roles'
-import { ROLE_LABELS } from '#shared/types/roles'
+import type { Role } from '#shared/utils/roles'
+import { ROLE_LABELS } from '#shared/utils/roles'
 import { invitationEmail } from '~~/email/invitation'
 
 const INVITATION_DAYS = 7

@@ -1,4 +1,5 @@
 export const ROLES = ['owner', 'engineer', 'reviewer'] as const
+
 export type Role = typeof ROLES[number]
 
 export const ROLE_LABELS: Record<Role, string> = {
@@ -8,8 +9,13 @@ export const ROLE_LABELS: Record<Role, string> = {
 }
 
 /** Higher can do everything lower can. */
-export const ROLE_RANK: Record<Role, number> = { reviewer: 1, engineer: 2, owner: 3 }
+export const ROLE_RANK: Record<Role, number> = {
+  reviewer: 1,
+  engineer: 2,
+  owner: 3,
+}
 
+/** True when `role` is at least `min` (an Owner can do what an Engineer can, and so on). */
 export function roleAtLeast(role: Role | null | undefined, min: Role): boolean {
-  return Boolean(role) && ROLE_RANK[role!] >= ROLE_RANK[min]
+  return role ? ROLE_RANK[role] >= ROLE_RANK[min] : false
 }
