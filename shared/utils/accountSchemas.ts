@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { ROLES } from '../types/roles'
+import { ROLES } from './roles'
 
 // Shared by the forms (validation as you type) and the server (the same rules, enforced).
 
