@@ -36,6 +36,9 @@ export function useZodForm<S extends z.ZodObject>(schema: S, initial: z.input<S>
     pending.value = true
     try {
       await send(r.data)
+      // a fresh start: fields the sender cleared don't show "required" at once
+      submitted.value = false
+      for (const k of Object.keys(touched)) touched[k] = false
     }
     catch (err) {
       const info = apiError(err)

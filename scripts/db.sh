@@ -33,9 +33,14 @@ if [ -z "$BINDIR" ]; then
   fi
 fi
 
-DATA="$RATCHET_PGDATA"
-SOCK="$DATA/run"
-LOG="$DATA/server.log"
+set_data() {
+  DATA="$1"
+  # a cluster kept elsewhere (see prepare_dir) is reached through a link
+  [ -L "$DATA" ] && DATA="$(readlink -f "$DATA")"
+  SOCK="$DATA/run"
+  LOG="$DATA/server.log"
+}
+set_data "$RATCHET_PGDATA"
 
 # As root, PostgreSQL must run as an unprivileged user. The data folder must be reachable by it:
 # if a parent folder blocks that user, fall back to a folder under /tmp and link it in place.
@@ -45,7 +50,8 @@ if [ "$(id -u)" = 0 ]; then
   AS=(runuser -u postgres --)
 fi
 
-run_pg() { "${AS[@]}" "$@"; }
+# from / so that the postgres user never needs to enter the caller's folder
+run_pg() { (cd / && "${AS[@]}" "$@"); }
 
 prepare_dir() {
   mkdir -p "$(dirname "$DATA")"
@@ -61,6 +67,7 @@ prepare_dir() {
       rmdir "$DATA" 2>/dev/null || true
       mkdir -p "$alt"; chown postgres: "$alt"; chmod 700 "$alt"
       ln -sfn "$alt" "$DATA"
+      set_data "$alt"
     fi
   fi
 }
@@ -95,8 +102,12 @@ start() {
       sleep 0.2
     done
     rm -f "$DATA/postmaster.pid"
-    run_pg "$BINDIR/pg_ctl" -D "$DATA" -l "$LOG" -w -t 60 \
-      -o "-p $RATCHET_PGPORT -k $SOCK" start >/dev/null
+    if ! run_pg "$BINDIR/pg_ctl" -D "$DATA" -l "$LOG" -w -t 60 \
+      -o "-p $RATCHET_PGPORT -k $SOCK" start >/dev/null; then
+      echo "db: PostgreSQL did not start on port $RATCHET_PGPORT; its log says:" >&2
+      tail -5 "$LOG" >&2
+      exit 1
+    fi
   fi
   psql_admin <<SQL
 SELECT format('CREATE ROLE %I LOGIN PASSWORD %L', '$RATCHET_DB_USER', '$RATCHET_DB_PASSWORD')
