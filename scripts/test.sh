@@ -23,7 +23,16 @@ if ! flock -n 9; then
   flock 9
 fi
 
-cleanup() { stop_services; bash scripts/db.sh stop || true; }
+# servers that tests restart themselves write their PIDs here
+EXTRA_PIDS="$ROOT/.data/test/pids"
+cleanup() {
+  if [ -f "$EXTRA_PIDS" ]; then
+    while read -r pid; do kill -TERM -- "-$pid" 2>/dev/null || kill -TERM "$pid" 2>/dev/null || true; done <"$EXTRA_PIDS"
+    rm -f "$EXTRA_PIDS"
+  fi
+  stop_services
+  bash scripts/db.sh stop || true
+}
 trap cleanup EXIT
 trap 'exit 130' INT TERM
 
@@ -60,18 +69,21 @@ npx nuxt build >.data/test-build.log 2>&1 || { tail -60 .data/test-build.log; ex
 
 step "maildev and the built server"
 mkdir -p .data/test
-rm -rf .data/test/mail
+rm -rf .data/test/mail "$EXTRA_PIDS"
 start_maildev "$SMTP_PORT" "$MAIL_WEB_PORT" "$ROOT/.data/test/mail"
 export NUXT_SESSION_PASSWORD="test-session-password-$(node -e "process.stdout.write(require('crypto').randomBytes(16).toString('hex'))")"
 export NUXT_APP_URL="http://127.0.0.1:$APP_PORT"
 export NUXT_SMTP_HOST=127.0.0.1 NUXT_SMTP_PORT="$SMTP_PORT"
 # tests vary X-Forwarded-For to act as different clients for the sign-in throttle
 export NUXT_AUTH_TRUST_PROXY=true
+export NUXT_FILES_DIR="$ROOT/.data/test/files" NUXT_FILES_MAX_BYTES=60000000 NUXT_FILES_TEAM_QUOTA_BYTES=1000000000
 start_app "$APP_PORT" .data/test/app.log
 
 export RATCHET_TEST_BASE_URL="http://127.0.0.1:$APP_PORT"
 export RATCHET_TEST_MAILDEV_URL="http://127.0.0.1:$MAIL_WEB_PORT"
-export RATCHET_TEST_APP_PID="$APP_PID"
+export RATCHET_TEST_APP_PID="$APP_PID" RATCHET_TEST_MAILDEV_PID="$MAILDEV_PID"
+export RATCHET_TEST_APP_PORT="$APP_PORT" RATCHET_TEST_SMTP_PORT="$SMTP_PORT" RATCHET_TEST_MAIL_WEB_PORT="$MAIL_WEB_PORT"
+export RATCHET_TEST_PIDFILE="$EXTRA_PIDS"
 
 step "vitest: unit, api, browser"
 status=0

@@ -1,6 +1,7 @@
 // Starts the job queue's workers in every app server; pg-boss shares the work between them.
 export default defineNitroPlugin((nitroApp) => {
   if (process.env.RATCHET_QUEUE === 'off' || import.meta.prerender) return
+  onEventsCommitted(nudgeFanout)
 
   const start = async () => {
     const boss = await useQueue()

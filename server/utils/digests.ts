@@ -36,11 +36,12 @@ export async function loadEvents(db: Db, buildId: string, opts: { afterId?: numb
   const q = db('events as e')
     .leftJoin('targets as t', 't.id', 'e.target_id')
     .leftJoin('revisions as r', 'r.id', 'e.revision_id')
+    .leftJoin('findings as f', 'f.id', 'e.finding_id')
     .where('e.build_id', buildId)
     .orderBy('e.id', 'desc')
     .limit(opts.limit ?? 200)
     .select('e.id', 'e.type', 'e.at', 'e.before', 'e.after', 'e.detail', 't.key as targetKey', 't.name as targetName',
-      'r.label as revisionLabel', 'r.changes as revisionChanges')
+      'r.label as revisionLabel', 'r.changes as revisionChanges', 'f.id as findingId', 'f.title as findingTitle')
   if (opts.afterId !== undefined) q.where('e.id', '>', opts.afterId)
   if (opts.ids) q.whereIn('e.id', opts.ids)
   const rows = await q
@@ -50,8 +51,7 @@ export async function loadEvents(db: Db, buildId: string, opts: { afterId?: numb
     at: new Date(r.at).toISOString(),
     target: r.targetKey ? { key: r.targetKey, name: r.targetName } : null,
     revision: r.revisionLabel ? { label: r.revisionLabel, changes: r.revisionChanges ?? [] } : null,
-    // TODO: safety findings join here once findings exist
-    finding: null,
+    finding: r.findingId ? { id: r.findingId, title: r.findingTitle } : null,
     before: r.before,
     after: r.after,
     detail: r.detail ?? {},

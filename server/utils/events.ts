@@ -1,5 +1,15 @@
 import type { Knex } from 'knex'
-import { targetTransition, type TargetState } from '#shared/utils/targetEvents'
+import { targetTransition, type TargetState } from '../../shared/utils/targetEvents'
+import { parseUnit } from '../../shared/utils/units'
+
+// Plain imports (no auto-imports): the seed and the benchmark use these outside the server.
+
+let afterCommit: () => void = () => {}
+
+/** The queue plugin sets what happens once an event's transaction commits (a nudge to deliver). */
+export function onEventsCommitted(fn: () => void) {
+  afterCommit = fn
+}
 
 type Db = Knex | Knex.Transaction
 
@@ -33,8 +43,8 @@ export async function recordEvent(trx: Db, e: NewEvent) {
   if (e.findingId) row.finding_id = e.findingId
   await trx('events').insert(row)
   const done = (trx as Knex.Transaction).executionPromise
-  if (done) done.then(() => nudgeFanout(), () => {})
-  else nudgeFanout()
+  if (done) done.then(() => afterCommit(), () => {})
+  else afterCommit()
 }
 
 /** A target's latest cell, as far as events care, with the numbers in SI. */

@@ -38,3 +38,11 @@ export function linkIn(mail: CapturedMail, pathPart: string): string {
   if (!m) throw new Error(`no link containing ${pathPart} in "${mail.subject}"`)
   return m[0]
 }
+
+/** A header of the message as sent (maildev's parsed headers leave some out), from its raw source. */
+export async function rawHeader(mail: CapturedMail, name: string): Promise<string | undefined> {
+  const source = await (await fetch(`${MAILDEV_URL}/api/email/${mail.id}/source`)).text()
+  const head = source.split(/\r?\n\r?\n/)[0]!.replace(/\r?\n[ \t]+/g, ' ')
+  const line = head.split(/\r?\n/).find(l => l.toLowerCase().startsWith(`${name.toLowerCase()}:`))
+  return line?.slice(name.length + 1).trim()
+}

@@ -1,0 +1,71 @@
+import { spawn } from 'node:child_process'
+import { appendFileSync, readFileSync } from 'node:fs'
+import { BASE_URL, MAILDEV_URL, ROOT } from './env'
+
+// Stopping and starting the servers that scripts/test.sh started, for tests of what survives a
+// restart or an outage. Servers started here are stopped by scripts/test.sh at the end.
+
+let appPid = Number(process.env.RATCHET_TEST_APP_PID)
+let maildevPid = Number(process.env.RATCHET_TEST_MAILDEV_PID)
+
+async function until(check: () => Promise<boolean>, what: string, ms = 30_000) {
+  const deadline = Date.now() + ms
+  while (Date.now() < deadline) {
+    if (await check().catch(() => false)) return
+    await new Promise(r => setTimeout(r, 200))
+  }
+  throw new Error(`timed out: ${what}`)
+}
+
+const alive = (pid: number) => {
+  try {
+    process.kill(pid, 0)
+    return true
+  }
+  catch {
+    return false
+  }
+}
+
+async function stop(pid: number, what: string) {
+  try {
+    process.kill(-pid, 'SIGTERM')
+  }
+  catch {
+    try { process.kill(pid, 'SIGTERM') }
+    catch { /* already gone */ }
+  }
+  await until(async () => !alive(pid), `${what} to stop`)
+}
+
+function launch(cmd: string, args: string[], env: NodeJS.ProcessEnv): number {
+  const child = spawn(cmd, args, { cwd: ROOT, env, detached: true, stdio: 'ignore' })
+  child.unref()
+  appendFileSync(process.env.RATCHET_TEST_PIDFILE!, `${child.pid}\n`)
+  return child.pid!
+}
+
+export async function stopMaildev() {
+  await stop(maildevPid, 'maildev')
+}
+
+export async function startMaildev() {
+  maildevPid = launch(process.execPath, [`${ROOT}node_modules/maildev/dist/bin/maildev.js`,
+    '--smtp', process.env.RATCHET_TEST_SMTP_PORT!, '--ip', '127.0.0.1', '--web', process.env.RATCHET_TEST_MAIL_WEB_PORT!,
+    '--web-ip', '127.0.0.1', '--mail-directory', `${ROOT}.data/test/mail`, '--silent'], process.env)
+  await until(async () => (await fetch(`${MAILDEV_URL}/api/healthz`)).ok, 'maildev to answer')
+}
+
+export async function stopApp() {
+  await stop(appPid, 'the app')
+}
+
+export async function startApp() {
+  appPid = launch(process.execPath, [`${ROOT}.output/server/index.mjs`],
+    { ...process.env, HOST: '127.0.0.1', PORT: process.env.RATCHET_TEST_APP_PORT })
+  await until(async () => (await fetch(`${BASE_URL}/api/health`)).ok, 'the app to answer')
+}
+
+export function pidsStarted(): number[] {
+  return readFileSync(process.env.RATCHET_TEST_PIDFILE!, 'utf8').split('\n').filter(Boolean).map(Number)
+}
