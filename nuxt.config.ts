@@ -46,6 +46,15 @@ export default defineNuxtConfig({
       maxAge: 60 * 60 * 24 * 14,
       cookie: { secure: true, sameSite: 'lax' },
     },
+    // Evidence files (server/utils/storage.ts): NUXT_FILES_DRIVER (fs | s3), NUXT_FILES_DIR,
+    // NUXT_FILES_MAX_BYTES, NUXT_FILES_TEAM_QUOTA_BYTES (0: none), NUXT_FILES_S3_ENDPOINT … .
+    files: {
+      driver: 'fs',
+      dir: '.data/files',
+      maxBytes: 200_000_000,
+      teamQuotaBytes: 10_000_000_000,
+      s3: { endpoint: '', bucket: '', region: 'us-east-1', accessKeyId: '', secretAccessKey: '' },
+    },
   },
   nitro: {
     experimental: { tasks: false },

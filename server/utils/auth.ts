@@ -42,7 +42,10 @@ const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i
 
 /** `id` or `slug` of a table row, for routes that accept either. */
 export function byIdOrSlug(q: Knex.QueryBuilder, table: string, key: string) {
-  return UUID.test(key) ? q.where(`${table}.id`, key) : q.where(`${table}.slug`, key.toLowerCase())
+  if (UUID.test(key)) return q.where(`${table}.id`, key)
+  // a key no slug can be (NUL, too long) matches nothing, rather than upsetting the database
+  if (key.length > 200 || key.includes('\0')) return q.whereRaw('false')
+  return q.where(`${table}.slug`, key.toLowerCase())
 }
 
 function refuse(role: Role, min: Role): never {

@@ -1,9 +1,16 @@
 import { z } from 'zod'
 import { nameField, slugField } from './accountSchemas'
+import { storableText } from './storableText'
 
 export const BuildBody = z.object({
-  team: z.string({ error: 'Name the team (its id or slug)' }).min(1, 'Name the team (its id or slug)').max(80),
-  name: nameField,
+  team: storableText(z.string({ error: 'Name the team (its id or slug)' }).min(1, 'Name the team (its id or slug)').max(80)),
+  name: storableText(nameField),
   slug: slugField.optional(),
-  summary: z.string().trim().max(2000, 'A summary has at most 2,000 characters').optional(),
+  summary: storableText(z.string().trim().max(2000, 'A summary has at most 2,000 characters')).optional(),
+})
+
+export const BuildPatch = z.object({
+  name: storableText(nameField).optional(),
+  summary: storableText(z.string().trim().max(2000, 'A summary has at most 2,000 characters')).optional(),
+  archived: z.boolean({ error: 'archived is true or false' }).optional(),
 })

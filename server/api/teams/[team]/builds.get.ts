@@ -1,5 +1,12 @@
+import { z } from 'zod'
+
+const Query = z.object({
+  // 1: archived builds too, each with its `archived` flag
+  archived: z.enum(['0', '1'], { error: 'archived is 0 or 1' }).optional(),
+})
+
 export default defineEventHandler(async (event) => {
   const { team } = await requireTeamRole(event, getRouterParam(event, 'team')!, 'reviewer')
-  return await useDb()('builds').where({ team_id: team.id }).whereNull('archived_at').orderBy('created_at', 'desc')
-    .select('id', 'name', 'slug', 'summary', 'created_at as createdAt')
+  const { archived } = queryAs(event, Query)
+  return await listBuildHealth(useDb(), team.id, archived === '1')
 })

@@ -1,0 +1,539 @@
+import type { H3Event } from 'h3'
+import { createError } from 'h3'
+import type { Knex } from 'knex'
+import type { z } from 'zod'
+import type { BoardData, FindingCard, FindingSummary, FixView } from '../../shared/types/findings'
+import { hazardOf } from '../../shared/utils/caution'
+import type { FindingCreate, FindingListQuery, FindingPatch, MoveBody } from '../../shared/utils/findingSchemas'
+import { LANES, LANE_LABELS, OPEN_LANES, OVERRIDABLE, laneRefusal, verificationOf, type CellStatus, type Lane, type Severity, type Verification, type VerificationFacts } from '../../shared/utils/lanes'
+import { RANK_SOFT_LIMIT, rankBetween, spreadRanks } from '../../shared/utils/rank'
+import type { Role } from '../../shared/utils/roles'
+import type { Quantity } from '../../shared/utils/units'
+import type { BuildAccess } from './auth'
+import { recordEvent } from './events'
+
+// Findings and the board: listing, creating, editing and moving them under the lane rules.
+// Plain Knex with the connection passed in (the seed uses it too). Writes to a build's board
+// (a new card, a move) take the board's lock, so two moves can't pick the same rank.
+
+type Db = Knex | Knex.Transaction
+
+export interface FindingRow {
+  id: string
+  build_id: string
+  title: string
+  description: string
+  severity: Severity
+  lane: Lane
+  rank: string
+  version: number
+  seen_on_revision_id: string | null
+  closed_at: Date | null
+  verified_revision_id: string | null
+  override_reason: string | null
+  override_by: string | null
+  created_by: string | null
+  created_by_rig: string | null
+  created_at: Date
+  updated_at: Date
+}
+
+/** Who writes: a person, or a rig token (API v1). */
+export interface FindingActor {
+  userId: string | null
+  rigTokenId: string | null
+  /** a name for the history */
+  label: string
+  role: Role
+}
+
+export function findingActor(access: Pick<BuildAccess, 'user' | 'rigTokenId' | 'actorLabel' | 'role'>): FindingActor {
+  return { userId: access.user?.id ?? null, rigTokenId: access.rigTokenId, label: access.user?.name ?? access.actorLabel, role: access.role }
+}
+
+export interface FindingAccess extends BuildAccess {
+  findingId: string
+}
+
+/**
+ * The caller's access to a finding's build. Signed-out callers get a 401 before anything is looked
+ * up; a finding outside the caller's teams is a 404.
+ */
+export async function requireFindingRole(event: H3Event, min: Role, opts: { allowRigToken?: boolean } = {}): Promise<FindingAccess> {
+  if (!(opts.allowRigToken && bearerToken(event))) await requireUser(event)
+  const id = uuidParam(event, 'id')
+  const row = await useDb()('findings').where({ id }).first('build_id')
+  if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
+  const access = await requireBuildRole(event, row.build_id, min, opts)
+  return { ...access, findingId: id }
+}
+
+/** Serialises writes to one build's board until the transaction ends. */
+export async function lockBoard(trx: Knex.Transaction, buildId: string) {
+  await trx.raw('SELECT pg_advisory_xact_lock(hashtextextended(?, 0))', [`findings-board:${buildId}`])
+}
+
+const LANE_ORDER = `array_position(ARRAY[${LANES.map(l => `'${l}'`).join(', ')}]::text[], f.lane::text)`
+
+export function fixesQuery(db: Db) {
+  return db('fixes as x')
+    .join('findings as f', 'f.id', 'x.finding_id')
+    .leftJoin('users as u', 'u.id', 'x.owner_id')
+    .leftJoin('revisions as lr', 'lr.id', 'x.landed_revision_id')
+    .orderBy([{ column: 'x.created_at' }, { column: 'x.id' }])
+    .select('x.id', 'x.finding_id', 'x.description', 'x.state', 'x.owner_id', 'u.name as owner_name',
+      db.raw(`to_char(x.due_on, 'YYYY-MM-DD') AS due_on`), 'lr.label as landed_label', 'lr.seq as landed_seq')
+}
+
+export interface FixJoinedRow {
+  id: string
+  finding_id: string
+  description: string
+  state: FixView['state']
+  owner_id: string | null
+  owner_name: string | null
+  due_on: string | null
+  landed_label: string | null
+  landed_seq: number | null
+}
+
+export function fixView(r: FixJoinedRow): FixView {
+  return {
+    id: r.id,
+    description: r.description,
+    state: r.state,
+    owner: r.owner_id ? { id: r.owner_id, name: r.owner_name ?? 'Former member' } : null,
+    dueOn: r.due_on,
+    landedIn: r.landed_label,
+  }
+}
+
+interface ListedRow {
+  id: string
+  title: string
+  lane: Lane
+  severity: Severity
+  rank: string
+  version: number
+  description?: string
+  created_at: Date
+  updated_at: Date
+  seen_label: string | null
+  seen_seq: number | null
+}
+
+type ListOptions = z.output<typeof FindingListQuery>
+
+function scoped<T extends Knex.QueryBuilder>(q: T, buildId: string, o: ListOptions): T {
+  q.where('f.build_id', buildId)
+  if (o.lane) q.where('f.lane', o.lane)
+  if (o.severity) q.where('f.severity', o.severity)
+  return q
+}
+
+/** The build's revisions that hold readings, with the status of each target tested there. */
+export async function revisionCells(db: Db, buildId: string): Promise<VerificationFacts['revisions']> {
+  const [revisions, cells] = await Promise.all([
+    db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq') as Promise<{ id: string, label: string, seq: number }[]>,
+    db('cell_stats').where({ build_id: buildId }).select('revision_id', 'target_id', 'status') as Promise<{ revision_id: string, target_id: string, status: CellStatus }[]>,
+  ])
+  const byRevision = new Map<string, Record<string, CellStatus>>()
+  for (const c of cells) {
+    const m = byRevision.get(c.revision_id) ?? {}
+    m[c.target_id] = c.status
+    byRevision.set(c.revision_id, m)
+  }
+  return revisions.filter(r => byRevision.has(r.id)).map(r => ({ seq: r.seq, label: r.label, cells: byRevision.get(r.id)! }))
+}
+
+interface Listed {
+  rows: ListedRow[]
+  targets: Map<string, { id: string, key: string }[]>
+  fixes: Map<string, FixJoinedRow[]>
+}
+
+async function listRows(db: Db, buildId: string, o: ListOptions, withDescription: boolean): Promise<Listed> {
+  const [rows, targetRows, fixRows] = await Promise.all([
+    scoped(db('findings as f').leftJoin('revisions as s', 's.id', 'f.seen_on_revision_id'), buildId, o)
+      .select('f.id', 'f.title', 'f.lane', 'f.severity', 'f.rank', 'f.version', 'f.created_at', 'f.updated_at',
+        's.label as seen_label', 's.seq as seen_seq', ...(withDescription ? ['f.description'] : []))
+      .orderByRaw(`${LANE_ORDER}, (f.severity <> 'safety'), f.rank`) as Promise<ListedRow[]>,
+    scoped(db('finding_targets as ft').join('findings as f', 'f.id', 'ft.finding_id').join('targets as t', 't.id', 'ft.target_id'), buildId, o)
+      .orderBy([{ column: 't.position' }, { column: 't.key' }])
+      .select('ft.finding_id', 't.id', 't.key') as Promise<{ finding_id: string, id: string, key: string }[]>,
+    scoped(fixesQuery(db), buildId, o) as Promise<FixJoinedRow[]>,
+  ])
+  const targets = new Map<string, { id: string, key: string }[]>()
+  for (const t of targetRows) {
+    const list = targets.get(t.finding_id)
+    if (list) list.push({ id: t.id, key: t.key })
+    else targets.set(t.finding_id, [{ id: t.id, key: t.key }])
+  }
+  const fixes = new Map<string, FixJoinedRow[]>()
+  for (const x of fixRows) {
+    const list = fixes.get(x.finding_id)
+    if (list) list.push(x)
+    else fixes.set(x.finding_id, [x])
+  }
+  return { rows, targets, fixes }
+}
+
+function summaryOf(r: ListedRow, l: Listed): FindingSummary {
+  return {
+    id: r.id,
+    title: r.title,
+    lane: r.lane,
+    severity: r.severity,
+    rank: r.rank,
+    version: r.version,
+    seenOn: r.seen_label,
+    targets: (l.targets.get(r.id) ?? []).map(t => t.key),
+    fixes: (l.fixes.get(r.id) ?? []).map(fixView),
+    createdAt: new Date(r.created_at).toISOString(),
+    updatedAt: new Date(r.updated_at).toISOString(),
+  }
+}
+
+/** One finding as API v1 shows it, in one statement (the answer to every write). */
+export async function findingSummary(db: Db, id: string): Promise<FindingSummary> {
+  const { rows } = await db.raw(`
+    SELECT f.id, f.title, f.lane, f.severity, f.rank, f.version, f.created_at, f.updated_at, s.label AS seen_label, s.seq AS seen_seq,
+      COALESCE((SELECT json_agg(json_build_object('id', t.id, 'key', t.key) ORDER BY t.position, t.key)
+        FROM finding_targets ft JOIN targets t ON t.id = ft.target_id WHERE ft.finding_id = f.id), '[]') AS targets,
+      COALESCE((SELECT json_agg(json_build_object('id', x.id, 'finding_id', x.finding_id, 'description', x.description, 'state', x.state,
+          'owner_id', x.owner_id, 'owner_name', u.name, 'due_on', to_char(x.due_on, 'YYYY-MM-DD'), 'landed_label', lr.label, 'landed_seq', lr.seq)
+          ORDER BY x.created_at, x.id)
+        FROM fixes x LEFT JOIN users u ON u.id = x.owner_id LEFT JOIN revisions lr ON lr.id = x.landed_revision_id
+        WHERE x.finding_id = f.id), '[]') AS fixes
+    FROM findings f LEFT JOIN revisions s ON s.id = f.seen_on_revision_id
+    WHERE f.id = ?`, [id]) as { rows: (ListedRow & { targets: { id: string, key: string }[], fixes: FixJoinedRow[] })[] }
+  const row = rows[0]
+  if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
+  return summaryOf(row, { rows: [row], targets: new Map([[row.id, row.targets]]), fixes: new Map([[row.id, row.fixes]]) })
+}
+
+/** API v1's list: the build's findings by lane, safety first, then by rank. */
+export async function listFindings(db: Db, buildId: string, o: ListOptions = {}): Promise<FindingSummary[]> {
+  const l = await listRows(db, buildId, o, false)
+  return l.rows.map(r => summaryOf(r, l))
+}
+
+export function verificationFactsOf(seen: { seq: number | null, label: string | null }, targets: { id: string, key: string }[], fixes: Pick<FixJoinedRow, 'state' | 'landed_seq' | 'landed_label'>[], revisions: VerificationFacts['revisions']): VerificationFacts {
+  return {
+    seenOn: seen.seq !== null && seen.label !== null ? { seq: seen.seq, label: seen.label } : null,
+    landedIn: fixes.filter(x => x.state === 'landed' && x.landed_seq !== null).map(x => ({ seq: x.landed_seq!, label: x.landed_label! })),
+    targets,
+    revisions,
+  }
+}
+
+/** The board: every card with what it shows and filters on, and the choices of the filters. */
+export async function buildBoard(db: Db, build: { id: string, slug: string, name: string, team_id: string }, role: Role): Promise<BoardData> {
+  const [l, comments, revisions, allRevisions, members, targets] = await Promise.all([
+    listRows(db, build.id, {}, true),
+    db('finding_comments as c').join('findings as f', 'f.id', 'c.finding_id').where('f.build_id', build.id)
+      .groupBy('c.finding_id').select('c.finding_id', db.raw('count(*)::int AS n')) as Promise<{ finding_id: string, n: number }[]>,
+    revisionCells(db, build.id),
+    db('revisions').where({ build_id: build.id }).orderBy('seq').pluck('label') as Promise<string[]>,
+    teamMembers(db, build.team_id),
+    db('targets').where({ build_id: build.id }).whereNull('archived_at').orderBy([{ column: 'position' }, { column: 'key' }])
+      .select('key', 'name', 'quantity') as Promise<{ key: string, name: string, quantity: Quantity }[]>,
+  ])
+  const commentCount = new Map(comments.map(c => [c.finding_id, c.n]))
+  const findings: FindingCard[] = l.rows.map((r) => {
+    const v = verificationOf(verificationFactsOf({ seq: r.seen_seq, label: r.seen_label }, l.targets.get(r.id) ?? [], l.fixes.get(r.id) ?? [], revisions))
+    return {
+      ...summaryOf(r, l),
+      description: r.description ?? '',
+      comments: commentCount.get(r.id) ?? 0,
+      verifiedOn: v.revision?.label ?? null,
+      closeBlocker: v.revision ? null : v.reason,
+    }
+  })
+  return {
+    build: { id: build.id, slug: build.slug, name: build.name },
+    role,
+    findings,
+    members: members.map(m => ({ id: m.id, name: m.name })),
+    targets: targets.map(t => ({ key: t.key, name: t.name, quantity: t.quantity, caution: hazardOf(t.quantity) !== null })),
+    revisions: allRevisions,
+  }
+}
+
+export async function teamMembers(db: Db, teamId: string): Promise<{ id: string, name: string, email: string }[]> {
+  return await db('memberships as m').join('users as u', 'u.id', 'm.user_id').where('m.team_id', teamId)
+    .orderBy('u.name').select('u.id', 'u.name', 'u.email')
+}
+
+// ---- writes ------------------------------------------------------------------------------------
+
+async function revisionIdOf(db: Db, buildId: string, label: string | null | undefined, field: string): Promise<string | null> {
+  if (!label) return null
+  const row = await db('revisions').where({ build_id: buildId }).whereRaw('lower(label) = lower(?)', [label]).first('id')
+  if (!row) throw createError({ statusCode: 404, message: `${field}: Revision "${label}" not found in this build`, data: { fields: { [field]: 'Not found in this build' } } })
+  return row.id
+}
+
+async function targetIdsOf(db: Db, buildId: string, keys: string[]): Promise<{ id: string, key: string }[]> {
+  if (!keys.length) return []
+  const rows = await db('targets').where({ build_id: buildId }).whereIn('key', keys).select('id', 'key') as { id: string, key: string }[]
+  const missing = keys.filter(k => !rows.some(r => r.key === k))
+  if (missing.length) {
+    throw createError({ statusCode: 404, message: `targets: ${missing.map(k => `"${k}"`).join(', ')} not found in this build`, data: { fields: { targets: 'Not found in this build' } } })
+  }
+  return keys.map(k => rows.find(r => r.key === k)!)
+}
+
+export async function recordFindingEvent(trx: Db, findingId: string, kind: 'created' | 'edited' | 'moved' | 'fix-added' | 'fix-edited', actor: FindingActor, detail: Record<string, unknown>) {
+  await trx('finding_events').insert({ finding_id: findingId, kind, actor_id: actor.userId, actor_label: actor.label.slice(0, 254), detail: JSON.stringify(detail) })
+}
+
+/** A new finding at the bottom of Spotted. */
+export async function createFinding(trx: Knex.Transaction, buildId: string, body: z.output<typeof FindingCreate>, actor: FindingActor): Promise<FindingSummary> {
+  const seenOn = await revisionIdOf(trx, buildId, body.seenOn, 'seenOn')
+  const targets = await targetIdsOf(trx, buildId, body.targets ?? [])
+  await lockBoard(trx, buildId)
+  const last = await trx('findings').where({ build_id: buildId, lane: 'spotted' }).orderBy('rank', 'desc').first('rank')
+  const [row] = await trx('findings').insert({
+    build_id: buildId,
+    title: body.title,
+    description: body.description ?? '',
+    severity: body.severity,
+    lane: 'spotted',
+    rank: rankBetween(last?.rank ?? null, null),
+    seen_on_revision_id: seenOn,
+    created_by: actor.userId,
+    created_by_rig: actor.rigTokenId,
+  }).returning('id') as { id: string }[]
+  if (targets.length) await trx('finding_targets').insert(targets.map(t => ({ finding_id: row!.id, target_id: t.id })))
+  await recordFindingEvent(trx, row!.id, 'created', actor, { severity: body.severity, lane: 'spotted', seenOn: body.seenOn ?? null, targets: targets.map(t => t.key) })
+  // reviewers hear of a safety finding (digests)
+  if (body.severity === 'safety') await recordEvent(trx, { buildId, type: 'finding.safety', findingId: row!.id, revisionId: seenOn })
+  return await findingSummary(trx, row!.id)
+}
+
+/** The finding, locked for the rest of the transaction; 404 when it is gone. */
+export async function lockFinding(trx: Knex.Transaction, id: string): Promise<FindingRow> {
+  const f = await trx('findings').where({ id }).forUpdate().first() as FindingRow | undefined
+  if (!f) throw createError({ statusCode: 404, message: 'Finding not found' })
+  return f
+}
+
+const EVENT_WORDS: Record<string, string> = { 'created': 'created it', 'edited': 'edited it', 'moved': 'moved it', 'fix-added': 'added a fix', 'fix-edited': 'changed a fix' }
+
+/** 409 for a write that names an older version, with the finding as it is now. */
+export async function staleWrite(trx: Db, f: FindingRow, sent: number) {
+  const last = await trx('finding_events').where({ finding_id: f.id }).orderBy('id', 'desc').first('kind', 'actor_label', 'detail') as { kind: string, actor_label: string, detail: { to?: Lane } } | undefined
+  const current = await findingSummary(trx, f.id)
+  let what = ''
+  if (last) {
+    what = last.kind === 'moved' && last.detail.to ? `moved it to ${LANE_LABELS[last.detail.to]}` : EVENT_WORDS[last.kind] ?? 'changed it'
+    what = ` Latest change: ${last.actor_label || 'someone'} ${what}.`
+  }
+  return createError({
+    statusCode: 409,
+    message: `This finding changed since you loaded it (you had version ${sent}, it is now at ${f.version}).${what} Reload it and try again.`,
+    data: { current, version: f.version },
+  })
+}
+
+async function bumpVersion(trx: Knex.Transaction, id: string, changes: Record<string, unknown> = {}) {
+  await trx('findings').where({ id }).update({ ...changes, version: trx.raw('version + 1'), updated_at: trx.fn.now() })
+}
+
+/** Edits title, description, severity, seen-on revision and targets; 409 for a stale version. */
+export async function editFinding(trx: Knex.Transaction, f: FindingRow, patch: z.output<typeof FindingPatch>, actor: FindingActor): Promise<FindingSummary> {
+  if (patch.version !== f.version) throw await staleWrite(trx, f, patch.version)
+  const changes: Record<string, unknown> = {}
+  const detail: Record<string, unknown> = {}
+  if (patch.title !== undefined && patch.title !== f.title) {
+    changes.title = patch.title
+    detail.title = { from: f.title, to: patch.title }
+  }
+  if (patch.description !== undefined && patch.description !== f.description) {
+    changes.description = patch.description
+    detail.description = { edited: true }
+  }
+  if (patch.severity !== undefined && patch.severity !== f.severity) {
+    changes.severity = patch.severity
+    detail.severity = { from: f.severity, to: patch.severity }
+  }
+  if (patch.seenOn !== undefined) {
+    const id = await revisionIdOf(trx, f.build_id, patch.seenOn, 'seenOn')
+    if (id !== f.seen_on_revision_id) {
+      const before = f.seen_on_revision_id ? (await trx('revisions').where({ id: f.seen_on_revision_id }).first('label'))?.label ?? null : null
+      changes.seen_on_revision_id = id
+      detail.seenOn = { from: before, to: id ? (await trx('revisions').where({ id }).first('label')).label : null }
+    }
+  }
+  if (patch.targets !== undefined) {
+    const next = await targetIdsOf(trx, f.build_id, patch.targets)
+    const now = await trx('finding_targets as ft').join('targets as t', 't.id', 'ft.target_id').where('ft.finding_id', f.id).select('t.id', 't.key') as { id: string, key: string }[]
+    const added = next.filter(t => !now.some(n => n.id === t.id))
+    const removed = now.filter(n => !next.some(t => t.id === n.id))
+    if (removed.length) await trx('finding_targets').where({ finding_id: f.id }).whereIn('target_id', removed.map(t => t.id)).delete()
+    if (added.length) await trx('finding_targets').insert(added.map(t => ({ finding_id: f.id, target_id: t.id })))
+    if (added.length || removed.length) detail.targets = { added: added.map(t => t.key), removed: removed.map(t => t.key) }
+  }
+  if (Object.keys(detail).length) {
+    await bumpVersion(trx, f.id, changes)
+    await recordFindingEvent(trx, f.id, 'edited', actor, detail)
+  }
+  if (changes.severity === 'safety') {
+    await recordEvent(trx, { buildId: f.build_id, type: 'finding.safety', findingId: f.id, revisionId: (changes.seen_on_revision_id as string | null | undefined) ?? f.seen_on_revision_id })
+  }
+  return await findingSummary(trx, f.id)
+}
+
+/** What the lane rules look at for one finding. */
+export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes: number, verification: Verification }> {
+  const [seen, targets, fixes, revisions] = await Promise.all([
+    f.seen_on_revision_id ? db('revisions').where({ id: f.seen_on_revision_id }).first('seq', 'label') : Promise.resolve(null),
+    db('finding_targets as ft').join('targets as t', 't.id', 'ft.target_id').where('ft.finding_id', f.id).orderBy([{ column: 't.position' }, { column: 't.key' }]).select('t.id', 't.key'),
+    db('fixes as x').leftJoin('revisions as lr', 'lr.id', 'x.landed_revision_id').where('x.finding_id', f.id).select('x.state', 'lr.seq as landed_seq', 'lr.label as landed_label'),
+    revisionCells(db, f.build_id),
+  ])
+  const facts = verificationFactsOf({ seq: seen?.seq ?? null, label: seen?.label ?? null }, targets, fixes, revisions)
+  return { landedFixes: facts.landedIn.length, verification: verificationOf(facts) }
+}
+
+/** How many of a finding's fixes landed in a revision (all the Retest rule needs). */
+async function landedFixesOf(db: Db, findingId: string): Promise<number> {
+  const row = await db('fixes').where({ finding_id: findingId, state: 'landed' }).whereNotNull('landed_revision_id').count('* as n').first()
+  return Number(row?.n ?? 0)
+}
+
+interface Neighbour { id: string, lane: Lane, rank: string, title: string }
+
+function boardChanged(message: string) {
+  return createError({ statusCode: 409, message: `The board changed since you loaded it: ${message}. Reload the board and try again.` })
+}
+
+/** The ranks the moved card goes between, from the neighbours the caller named. */
+async function slotOf(trx: Knex.Transaction, f: FindingRow, lane: Lane, before?: string, after?: string): Promise<[string | null, string | null]> {
+  const ids = [before, after].filter((x): x is string => Boolean(x))
+  if (ids.includes(f.id)) throw createError({ statusCode: 400, message: 'A card can’t be placed next to itself', data: { fields: { [before === f.id ? 'before' : 'after']: 'The moved card itself' } } })
+  const rows = ids.length ? await trx('findings').where({ build_id: f.build_id }).whereIn('id', ids).select('id', 'lane', 'rank', 'title') as Neighbour[] : []
+  const find = (id: string | undefined, field: string) => {
+    if (!id) return null
+    const row = rows.find(r => r.id === id)
+    if (!row) throw createError({ statusCode: 404, message: `${field}: No such finding on this board`, data: { fields: { [field]: 'Not on this board' } } })
+    if (row.lane !== lane) throw boardChanged(`“${row.title}” is in ${LANE_LABELS[row.lane]}, not ${LANE_LABELS[lane]}`)
+    return row
+  }
+  const below = find(before, 'before')
+  const above = find(after, 'after')
+  const lanePeers = () => trx('findings').where({ build_id: f.build_id, lane }).whereNot('id', f.id)
+  if (above && below) {
+    if (!(above.rank < below.rank)) throw boardChanged(`“${above.title}” is no longer above “${below.title}”`)
+    return [above.rank, below.rank]
+  }
+  if (below) {
+    const prev = await lanePeers().where('rank', '<', below.rank).orderBy('rank', 'desc').first('rank')
+    return [prev?.rank ?? null, below.rank]
+  }
+  if (above) {
+    const next = await lanePeers().where('rank', '>', above.rank).orderBy('rank', 'asc').first('rank')
+    return [above.rank, next?.rank ?? null]
+  }
+  const last = await lanePeers().orderBy('rank', 'desc').first('rank')
+  return [last?.rank ?? null, null]
+}
+
+/** Gives the lane fresh, short ranks with the moved card between `prev` and `next`; returns its rank. */
+async function respreadLane(trx: Knex.Transaction, f: FindingRow, lane: Lane, prev: string | null): Promise<string> {
+  const ids = await trx('findings').where({ build_id: f.build_id, lane }).whereNot('id', f.id).orderBy('rank').select('id', 'rank') as { id: string, rank: string }[]
+  const at = prev === null ? 0 : ids.findIndex(r => r.rank === prev) + 1
+  const order = [...ids.slice(0, at).map(r => r.id), f.id, ...ids.slice(at).map(r => r.id)]
+  const ranks = spreadRanks(order.length)
+  const others = order.map((id, i) => [id, ranks[i]!] as const).filter(([id]) => id !== f.id)
+  if (others.length) {
+    await trx.raw(`UPDATE findings AS f SET rank = v.rank FROM (VALUES ${others.map(() => '(?::uuid, ?)').join(', ')}) AS v(id, rank) WHERE f.id = v.id`, others.flat())
+  }
+  return ranks[at]!
+}
+
+export interface MoveResult {
+  finding: FindingSummary
+  /** other cards of the lane got new ranks too (rare): reload the lane */
+  respread: boolean
+  /** an Owner's override let it in (the caller records it in the audit log) */
+  override: boolean
+}
+
+/**
+ * Moves a finding into `lane` between two neighbours. 409 for a stale version or neighbours that
+ * moved; 422 when the lane's rule refuses, unless an Owner overrides it with a reason.
+ */
+export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.output<typeof MoveBody>, actor: FindingActor): Promise<MoveResult> {
+  if (body.override && actor.role !== 'owner') {
+    throw createError({ statusCode: 403, message: 'Only an Owner can override a lane rule' })
+  }
+  if (body.version !== f.version) throw await staleWrite(trx, f, body.version)
+  const lane = body.lane
+  const changesLane = lane !== f.lane
+  let override: { reason: string, rule: string } | null = null
+  let verifiedBy: { seq: number, label: string } | null = null
+  if (changesLane && (lane === 'retest' || lane === 'closed')) {
+    const facts = lane === 'retest'
+      ? { landedFixes: await landedFixesOf(trx, f.id), verification: { revision: null, reason: '' } }
+      : await laneFactsOf(trx, f)
+    const refusal = laneRefusal(lane, facts)
+    if (refusal) {
+      if (!body.override || !OVERRIDABLE.includes(lane)) {
+        throw createError({ statusCode: 422, message: refusal, data: { rule: lane, reason: refusal, canOverride: actor.role === 'owner' } })
+      }
+      override = { reason: body.override.reason, rule: refusal }
+    }
+    else if (lane === 'closed' && facts.verification.revision) {
+      verifiedBy = facts.verification.revision
+    }
+  }
+
+  const [prev, next] = await slotOf(trx, f, lane, body.before, body.after)
+  let rank: string
+  let respread = false
+  if (!changesLane && (prev === null || prev < f.rank) && (next === null || f.rank < next)) rank = f.rank
+  else {
+    rank = rankBetween(prev, next)
+    if (rank.length > RANK_SOFT_LIMIT) {
+      rank = await respreadLane(trx, f, lane, prev)
+      respread = true
+    }
+  }
+
+  const closing: Record<string, unknown> = {}
+  if (changesLane && lane === 'closed') {
+    closing.closed_at = trx.fn.now()
+    closing.verified_revision_id = verifiedBy ? (await trx('revisions').where({ build_id: f.build_id, seq: verifiedBy.seq }).first('id'))?.id ?? null : null
+    closing.override_reason = override?.reason ?? null
+    closing.override_by = override ? actor.userId : null
+  }
+  else if (changesLane && f.lane === 'closed') {
+    Object.assign(closing, { closed_at: null, verified_revision_id: null, override_reason: null, override_by: null })
+  }
+  await bumpVersion(trx, f.id, { lane, rank, ...closing })
+  if (changesLane) {
+    await recordFindingEvent(trx, f.id, 'moved', actor, {
+      from: f.lane,
+      to: lane,
+      ...(verifiedBy ? { verifiedBy: verifiedBy.label } : {}),
+      ...(override ? { override } : {}),
+    })
+  }
+  return { finding: await findingSummary(trx, f.id), respread, override: Boolean(override) }
+}
+
+/** Per target key, the open findings (not Closed or Parked) that hurt it; safety first. */
+export async function openFindingsByTarget(db: Db, buildId: string) {
+  const rows = await db('findings as f')
+    .join('finding_targets as ft', 'ft.finding_id', 'f.id')
+    .join('targets as t', 't.id', 'ft.target_id')
+    .where('f.build_id', buildId)
+    .whereIn('f.lane', OPEN_LANES)
+    .orderByRaw(`(f.severity <> 'safety'), f.created_at`)
+    .select('t.key', 'f.id', 'f.title', 'f.severity') as { key: string, id: string, title: string, severity: Severity }[]
+  const out: Record<string, { id: string, title: string, severity: Severity }[]> = {}
+  for (const r of rows) (out[r.key] ??= []).push({ id: r.id, title: r.title, severity: r.severity })
+  return out
+}

@@ -1,0 +1,223 @@
+import { createError } from 'h3'
+import type { Knex } from 'knex'
+import type { z } from 'zod'
+import type { TargetView } from '../../shared/types/api'
+import { hazardOf } from '../../shared/utils/caution'
+import { tidyNumber } from '../../shared/utils/cellStats'
+import type { Comparator } from '../../shared/utils/conformance'
+import { targetRuleProblems, type TargetBody, type TargetPatch } from '../../shared/utils/targetSchemas'
+import { QUANTITY_LABELS, UnitError, assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI, type Quantity, type UnitInfo } from '../../shared/utils/units'
+import { redecideTarget, type CellTarget } from './statsCache'
+import { recordTargetChange, targetSnapshot } from './events'
+
+// Targets of a build. Plain Knex with the connection passed in (the seed uses it too).
+// Thresholds arrive in the display unit and are stored in SI.
+
+type Db = Knex | Knex.Transaction
+
+const TARGET_KEY = /^[a-z][a-z0-9_]{0,59}$/
+
+/** SI values of a definition must stay finite (1e308 kWh would not). */
+function finiteOr400(values: Record<string, number | null>) {
+  const bad = Object.entries(values).filter(([, v]) => v !== null && !Number.isFinite(v)).map(([k]) => k)
+  if (bad.length > 0) {
+    throw createError({ statusCode: 400, message: `${bad[0]}: The value is too large to compute with in SI`, data: { fields: Object.fromEntries(bad.map(k => [k, 'Too large'])) } })
+  }
+}
+
+export interface TargetRow {
+  id: string
+  build_id: string
+  key: string
+  name: string
+  unit: string
+  quantity: Quantity
+  comparator: Comparator
+  threshold: number
+  threshold_high: number | null
+  stretch: number | null
+  noise_band: number | null
+  notes: string
+  position: number
+  archived_at: Date | null
+  created_at: Date
+  updated_at: Date
+}
+
+/** A unit the caller typed; an unknown one is a 422 saying so. */
+export function unitOr422(text: string, field = 'unit'): UnitInfo {
+  try {
+    return parseUnit(text)
+  }
+  catch (e) {
+    throw unitProblem(e, field)
+  }
+}
+
+/** A UnitError as a 422 (other errors pass through). */
+export function unitProblem(e: unknown, field = 'unit') {
+  if (!(e instanceof UnitError)) return e
+  const message = e.code === 'unknown' ? `${e.message}; GET /api/units lists the units Ratchet knows` : e.message
+  return createError({ statusCode: 422, message: `${field}: ${message}`, data: { fields: { [field]: message } } })
+}
+
+export function cellTargetOf(t: TargetRow): CellTarget {
+  return { id: t.id, buildId: t.build_id, comparator: t.comparator, threshold: t.threshold, thresholdHigh: t.threshold_high, noiseBand: t.noise_band }
+}
+
+const orNull = (x: number | null, f: (v: number) => number) => (x === null ? null : tidyNumber(f(x)))
+
+/** The target's definition in its display unit. */
+export function targetView(t: TargetRow): TargetView {
+  const unit = parseUnit(t.unit)
+  const hazard = hazardOf(t.quantity)
+  return {
+    id: t.id,
+    key: t.key,
+    name: t.name,
+    unit: t.unit,
+    quantity: t.quantity,
+    quantityLabel: QUANTITY_LABELS[t.quantity],
+    comparator: t.comparator,
+    threshold: tidyNumber(fromSI(t.threshold, unit)),
+    thresholdHigh: orNull(t.threshold_high, v => fromSI(v, unit)),
+    stretch: orNull(t.stretch, v => fromSI(v, unit)),
+    noiseBand: orNull(t.noise_band, v => diffFromSI(v, unit)),
+    notes: t.notes,
+    position: t.position,
+    archived: t.archived_at !== null,
+    caution: hazard !== null,
+    hazard,
+  }
+}
+
+/** A target of the build by its key; 404 otherwise. `lock` takes the row for the transaction. */
+export async function findTarget(db: Db, buildId: string, key: string, lock = false): Promise<TargetRow> {
+  const wanted = String(key).trim()
+  // a key that can't exist is not looked up (nor is text PostgreSQL would refuse)
+  const q = db('targets').where({ build_id: buildId, key: wanted }).first()
+  const row = TARGET_KEY.test(wanted) ? (await (lock ? q.forUpdate() : q)) as TargetRow | undefined : undefined
+  if (!row) throw createError({ statusCode: 404, message: `Target "${key}" not found in this build`, data: { fields: { target: 'Not found in this build' } } })
+  return row
+}
+
+function duplicateKey(key: string) {
+  return createError({ statusCode: 409, message: `key: A target with the key "${key}" exists in this build; choose another`, data: { fields: { key: 'Taken' } } })
+}
+
+const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23505'
+
+export async function insertTarget(trx: Knex.Transaction, buildId: string, body: z.output<typeof TargetBody>, createdBy: string | null): Promise<TargetRow> {
+  const unit = unitOr422(body.unit)
+  // serialises target creation in the build (the key check and the position)
+  await trx('builds').where({ id: buildId }).forUpdate().first('id')
+  if (await trx('targets').where({ build_id: buildId, key: body.key }).first('id')) throw duplicateKey(body.key)
+  const { max } = (await trx('targets').where({ build_id: buildId }).max('position as max').first()) as { max: number | null }
+  const si = {
+    threshold: toSI(body.threshold, unit),
+    thresholdHigh: body.comparator === 'between' ? toSI(body.thresholdHigh!, unit) : null,
+    stretch: body.stretch == null ? null : toSI(body.stretch, unit),
+    noiseBand: body.noiseBand == null ? null : diffToSI(body.noiseBand, unit),
+  }
+  finiteOr400(si)
+  try {
+    const [row] = await trx('targets').insert({
+      build_id: buildId,
+      key: body.key,
+      name: body.name,
+      unit: unit.unit,
+      quantity: unit.quantity,
+      comparator: body.comparator,
+      threshold: si.threshold,
+      threshold_high: si.thresholdHigh,
+      stretch: si.stretch,
+      noise_band: si.noiseBand,
+      notes: body.notes ?? '',
+      position: (max ?? -1) + 1,
+      created_by: createdBy,
+    }).returning('*')
+    return row as TargetRow
+  }
+  catch (e) {
+    if (isUniqueViolation(e)) throw duplicateKey(body.key)
+    throw e
+  }
+}
+
+/**
+ * Edits a target (the caller has locked its row). A new display unit must measure the same
+ * quantity; thresholds given in the same call are read in the new unit. When the rule changes,
+ * the cached statuses and movements are decided again in the same transaction.
+ */
+export async function updateTarget(trx: Knex.Transaction, t: TargetRow, patch: z.output<typeof TargetPatch>): Promise<TargetRow> {
+  let unit = parseUnit(t.unit)
+  if (patch.unit !== undefined) {
+    try {
+      unit = assertSameQuantity(patch.unit, t.unit).entered
+    }
+    catch (e) {
+      throw unitProblem(e)
+    }
+  }
+  const comparator = patch.comparator ?? t.comparator
+  const shown = (v: number | null) => (v === null ? null : tidyNumber(fromSI(v, unit)))
+  const thresholdHigh = patch.thresholdHigh !== undefined ? patch.thresholdHigh : comparator === 'between' ? shown(t.threshold_high) : null
+  const merged = {
+    comparator,
+    threshold: patch.threshold ?? shown(t.threshold)!,
+    thresholdHigh,
+    stretch: patch.stretch !== undefined ? patch.stretch : shown(t.stretch),
+  }
+  const problems = targetRuleProblems(merged)
+  const [field, message] = Object.entries(problems)[0] ?? []
+  if (field) throw createError({ statusCode: 400, message: `${field}: ${message}`, data: { fields: problems } })
+
+  const changes: Record<string, unknown> = { updated_at: trx.fn.now() }
+  if (patch.name !== undefined) changes.name = patch.name
+  if (patch.notes !== undefined) changes.notes = patch.notes
+  if (patch.unit !== undefined) changes.unit = unit.unit
+  if (patch.comparator !== undefined) changes.comparator = comparator
+  if (patch.threshold !== undefined) changes.threshold = toSI(patch.threshold, unit)
+  if (patch.thresholdHigh !== undefined || comparator !== 'between') {
+    changes.threshold_high = thresholdHigh === null ? null : patch.thresholdHigh !== undefined ? toSI(thresholdHigh, unit) : t.threshold_high
+  }
+  if (patch.stretch !== undefined) changes.stretch = patch.stretch === null ? null : toSI(patch.stretch, unit)
+  if (patch.noiseBand !== undefined) changes.noise_band = patch.noiseBand === null ? null : diffToSI(patch.noiseBand, unit)
+  finiteOr400(Object.fromEntries(['threshold', 'threshold_high', 'stretch', 'noise_band']
+    .filter(k => typeof changes[k] === 'number').map(k => [k, changes[k] as number])))
+  if (patch.archived === true && !t.archived_at) changes.archived_at = trx.fn.now()
+  if (patch.archived === false && t.archived_at) {
+    changes.archived_at = null
+    const { max } = (await trx('targets').where({ build_id: t.build_id }).whereNull('archived_at').max('position as max').first()) as { max: number | null }
+    changes.position = (max ?? -1) + 1
+  }
+  const [row] = await trx('targets').where({ id: t.id }).update(changes).returning('*') as TargetRow[]
+  const ruleChanged = ['comparator', 'threshold', 'threshold_high', 'noise_band'].some(k => k in changes)
+  if (ruleChanged) {
+    const before = await targetSnapshot(trx, row!.id)
+    await redecideTarget(trx, cellTargetOf(row!))
+    await recordTargetChange(trx, row!, before)
+  }
+  return row!
+}
+
+/** Puts the build's active targets in the order of `keys`, which must list each of them once. */
+export async function reorderTargets(trx: Knex.Transaction, buildId: string, keys: string[]): Promise<void> {
+  await trx('builds').where({ id: buildId }).forUpdate().first('id')
+  const active: string[] = await trx('targets').where({ build_id: buildId }).whereNull('archived_at').pluck('key')
+  const given = new Set(keys)
+  const missing = active.filter(k => !given.has(k))
+  const unknown = keys.filter(k => !active.includes(k))
+  if (given.size !== keys.length || missing.length > 0 || unknown.length > 0) {
+    const parts = [
+      given.size !== keys.length ? 'a key appears twice' : '',
+      missing.length ? `missing: ${missing.join(', ')}` : '',
+      unknown.length ? `not active targets of this build: ${unknown.join(', ')}` : '',
+    ].filter(Boolean)
+    throw createError({ statusCode: 400, message: `keys: List every active target of the build once (${parts.join('; ')})`, data: { fields: { keys: parts.join('; ') } } })
+  }
+  await trx.raw(`
+    UPDATE targets AS t SET position = x.ord - 1, updated_at = now()
+    FROM unnest(?::text[]) WITH ORDINALITY AS x(key, ord)
+    WHERE t.build_id = ? AND t.key = x.key`, [keys, buildId])
+}

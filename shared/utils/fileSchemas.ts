@@ -1,0 +1,45 @@
+import { z } from 'zod'
+import { FILE_KINDS } from './contentTypes'
+
+// Shared by the files tab, the CSV import wizard and their routes.
+
+const column = z.string().trim().max(200, 'A column name has at most 200 characters')
+const optionalColumn = column.nullable().optional().transform(v => (v ? v : null))
+const optionalText = (max: number) => z.string().trim().max(max).nullable().optional().transform(v => (v ? v : null))
+
+/** The fields that may come with an upload, besides the file (multipart text fields). */
+export const UploadFields = z.object({
+  revision: optionalText(40),
+  reading: z.uuid({ error: 'Give the reading’s id' }).nullable().optional().transform(v => v ?? null),
+  finding: z.uuid({ error: 'Give the finding’s id' }).nullable().optional().transform(v => v ?? null),
+})
+
+export const FileListQuery = z.object({
+  revision: optionalText(40),
+  reading: z.uuid({ error: 'Give the reading’s id' }).optional(),
+  finding: z.uuid({ error: 'Give the finding’s id' }).optional(),
+  target: optionalText(60),
+  kind: z.enum(FILE_KINDS as [string, ...string[]], { error: `kind is one of ${FILE_KINDS.join(', ')}` }).optional(),
+  q: optionalText(100),
+  page: z.coerce.number({ error: 'page is a number' }).int().min(1).max(100_000).default(1),
+  perPage: z.coerce.number({ error: 'perPage is a number' }).int().min(1).max(100, 'perPage is at most 100').default(24),
+})
+
+export const CsvPreviewQuery = z.object({
+  file: z.uuid({ error: 'Give the uploaded file’s id' }),
+})
+
+export const CsvImportBody = z.object({
+  file: z.uuid({ error: 'Give the uploaded file’s id' }),
+  target: z.string({ error: 'Choose the target' }).trim().min(1, 'Choose the target').max(60),
+  valueColumn: column.min(1, 'Choose the column that holds the values'),
+  unitColumn: optionalColumn,
+  timeColumn: optionalColumn,
+  revisionColumn: optionalColumn,
+  revision: optionalText(40),
+  unit: optionalText(30),
+  method: z.string().trim().max(200, 'A method has at most 200 characters').optional(),
+  /** instrument resolution, in the unit of the values */
+  resolution: z.number({ error: 'The resolution must be a number' }).min(0, 'The resolution is 0 or more').nullable().optional(),
+}).refine(b => b.revision || b.revisionColumn, { message: 'Choose the revision, or a column that names it', path: ['revision'] })
+  .refine(b => b.unit || b.unitColumn, { message: 'Choose the unit of the values, or a column that names it', path: ['unit'] })

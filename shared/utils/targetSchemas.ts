@@ -1,0 +1,89 @@
+import { z } from 'zod'
+import { nameField } from './accountSchemas'
+import { storableText } from './storableText'
+
+// Shared by the target forms and the target routes. Numbers are in the target's display unit.
+
+export const COMPARATORS = ['atLeast', 'atMost', 'between'] as const
+
+// `order` is a path of its own under a build's targets (the drag order).
+const RESERVED_KEYS = ['order']
+
+export const targetKeyField = z.string({ error: 'Give the target a key' })
+  .trim()
+  .min(1, 'Give the target a key')
+  .max(60, 'A key has at most 60 characters')
+  .regex(/^[a-z][a-z0-9_]*$/, 'A key uses lower-case letters, digits and underscores, and starts with a letter')
+  .refine(k => !RESERVED_KEYS.includes(k), 'This key is reserved; choose another')
+
+export const unitField = storableText(z.string({ error: 'Give a unit' }).trim().min(1, 'Give a unit').max(30, 'A unit has at most 30 characters'))
+
+/** A finite number (zod refuses NaN, Infinity and numeric strings). */
+export const numberField = (what: string) => z.number({ error: `${what} must be a number` })
+
+export const comparatorField = z.enum(COMPARATORS, { error: 'The comparator is atLeast, atMost or between' })
+
+const notesField = storableText(z.string().trim().max(4000, 'Notes have at most 4,000 characters'))
+const targetNameField = storableText(nameField)
+
+export interface TargetRuleInput {
+  comparator: typeof COMPARATORS[number]
+  threshold: number
+  thresholdHigh?: number | null
+  stretch?: number | null
+}
+
+/** What is wrong with a target's thresholds, by field (empty when nothing is). */
+export function targetRuleProblems(t: TargetRuleInput): Record<string, string> {
+  const out: Record<string, string> = {}
+  const high = t.thresholdHigh ?? null
+  if (t.comparator === 'between') {
+    if (high === null) out.thresholdHigh = 'A between target needs an upper threshold'
+    else if (high < t.threshold) out.thresholdHigh = 'The upper threshold must be at least the lower one'
+  }
+  else if (high !== null) {
+    out.thresholdHigh = 'Only a between target has an upper threshold'
+  }
+  const stretch = t.stretch ?? null
+  if (stretch !== null) {
+    if (t.comparator === 'atLeast' && stretch < t.threshold) out.stretch = 'For an at-least target the stretch goal is at or above the threshold'
+    if (t.comparator === 'atMost' && stretch > t.threshold) out.stretch = 'For an at-most target the stretch goal is at or below the threshold'
+    if (t.comparator === 'between' && high !== null && (stretch < t.threshold || stretch > high)) out.stretch = 'For a between target the stretch goal lies inside the band'
+  }
+  return out
+}
+
+function refineRule(t: TargetRuleInput, ctx: z.RefinementCtx) {
+  for (const [path, message] of Object.entries(targetRuleProblems(t))) ctx.addIssue({ code: 'custom', path: [path], message })
+}
+
+export const TargetBody = z.object({
+  key: targetKeyField,
+  name: targetNameField,
+  unit: unitField,
+  comparator: comparatorField,
+  threshold: numberField('The threshold'),
+  thresholdHigh: numberField('The upper threshold').nullable().optional(),
+  stretch: numberField('The stretch goal').nullable().optional(),
+  noiseBand: numberField('The noise band').min(0, 'The noise band is 0 or more').nullable().optional(),
+  notes: notesField.optional(),
+}).superRefine(refineRule)
+
+/** Partial edit; the server checks the merged thresholds with targetRuleProblems. */
+export const TargetPatch = z.object({
+  name: targetNameField.optional(),
+  unit: unitField.optional(),
+  comparator: comparatorField.optional(),
+  threshold: numberField('The threshold').optional(),
+  thresholdHigh: numberField('The upper threshold').nullable().optional(),
+  stretch: numberField('The stretch goal').nullable().optional(),
+  noiseBand: numberField('The noise band').min(0, 'The noise band is 0 or more').nullable().optional(),
+  notes: notesField.optional(),
+  archived: z.boolean({ error: 'archived is true or false' }).optional(),
+})
+
+export const TargetOrderBody = z.object({
+  keys: z.array(targetKeyField, { error: 'keys: give the list of target keys' })
+    .min(1, 'Give the list of target keys')
+    .max(1000),
+})

@@ -1,0 +1,142 @@
+import { createHash } from 'node:crypto'
+import { createServer, type IncomingMessage, type Server } from 'node:http'
+import type { AddressInfo } from 'node:net'
+import { Readable } from 'node:stream'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { S3Store } from '../../server/utils/s3'
+
+// The S3 store against a small in-process stand-in for an S3-compatible service: it keeps
+// objects and multipart uploads in memory, answers the XML S3 answers, and refuses a request
+// whose payload hash doesn't match its body (as S3 does).
+
+interface Upload { key: string, parts: Map<number, Buffer> }
+
+function fakeS3() {
+  const objects = new Map<string, { body: Buffer, modified: Date }>()
+  const uploads = new Map<string, Upload>()
+  const log: { method: string, path: string, query: string, bytes: number }[] = []
+  let nextUpload = 1
+  const read = (req: IncomingMessage) => new Promise<Buffer>((resolve) => {
+    const chunks: Buffer[] = []
+    req.on('data', (c: Buffer) => chunks.push(c)).on('end', () => resolve(Buffer.concat(chunks)))
+  })
+  const server = createServer(async (req, res) => {
+    const url = new URL(req.url!, 'http://x')
+    const body = await read(req)
+    log.push({ method: req.method!, path: url.pathname, query: url.search, bytes: body.length })
+    const declared = req.headers['x-amz-content-sha256']
+    if (!req.headers.authorization?.startsWith('AWS4-HMAC-SHA256 Credential=KEY/') || declared !== createHash('sha256').update(body).digest('hex')) {
+      res.writeHead(403).end('<Error><Code>SignatureDoesNotMatch</Code></Error>')
+      return
+    }
+    const key = decodeURIComponent(url.pathname.replace(/^\/bucket\/?/, ''))
+    const q = url.searchParams
+    if (req.method === 'POST' && q.has('uploads')) {
+      const id = `u${nextUpload++}`
+      uploads.set(id, { key, parts: new Map() })
+      res.end(`<?xml version="1.0"?><InitiateMultipartUploadResult><UploadId>${id}</UploadId></InitiateMultipartUploadResult>`)
+    }
+    else if (req.method === 'PUT' && q.has('uploadId')) {
+      uploads.get(q.get('uploadId')!)!.parts.set(Number(q.get('partNumber')), body)
+      res.writeHead(200, { etag: `"p${q.get('partNumber')}"` }).end()
+    }
+    else if (req.method === 'POST' && q.has('uploadId')) {
+      const up = uploads.get(q.get('uploadId')!)!
+      const numbers = [...body.toString().matchAll(/<PartNumber>(\d+)<\/PartNumber><ETag>"p(\d+)"<\/ETag>/g)].map(m => Number(m[1]))
+      objects.set(up.key, { body: Buffer.concat(numbers.map(n => up.parts.get(n)!)), modified: new Date('2026-01-01T00:00:00Z') })
+      uploads.delete(q.get('uploadId')!)
+      res.end('<CompleteMultipartUploadResult/>')
+    }
+    else if (req.method === 'DELETE' && q.has('uploadId')) {
+      uploads.delete(q.get('uploadId')!)
+      res.writeHead(204).end()
+    }
+    else if (req.method === 'PUT') {
+      objects.set(key, { body, modified: new Date() })
+      res.end()
+    }
+    else if (req.method === 'GET' && q.get('list-type') === '2') {
+      const keys = [...objects.keys()].sort()
+      const start = Number(q.get('continuation-token') ?? 0)
+      const page = keys.slice(start, start + 2)
+      const more = start + 2 < keys.length
+      res.end(`<?xml version="1.0"?><ListBucketResult>${page.map(k => `<Contents><Key>${k}</Key><LastModified>${objects.get(k)!.modified.toISOString()}</LastModified></Contents>`).join('')}`
+        + `<IsTruncated>${more}</IsTruncated>${more ? `<NextContinuationToken>${start + 2}</NextContinuationToken>` : ''}</ListBucketResult>`)
+    }
+    else if (req.method === 'GET') {
+      const obj = objects.get(key)
+      if (!obj) {
+        res.writeHead(404).end()
+        return
+      }
+      const m = /bytes=(\d+)-(\d+)/.exec(req.headers.range ?? '')
+      if (m) res.writeHead(206).end(obj.body.subarray(Number(m[1]), Number(m[2]) + 1))
+      else res.end(obj.body)
+    }
+    else if (req.method === 'DELETE') {
+      objects.delete(key)
+      res.writeHead(204).end()
+    }
+    else res.writeHead(400).end()
+  })
+  return { server, objects, uploads, log }
+}
+
+const text = async (r: Readable) => {
+  const chunks: Buffer[] = []
+  for await (const c of r) chunks.push(c as Buffer)
+  return Buffer.concat(chunks)
+}
+
+describe('S3Store', () => {
+  const fake = fakeS3()
+  let store: S3Store
+  beforeAll(async () => {
+    await new Promise<void>(r => fake.server.listen(0, '127.0.0.1', r))
+    const port = (fake.server as Server).address() as AddressInfo
+    store = new S3Store({ endpoint: `http://127.0.0.1:${port.port}`, bucket: 'bucket', region: 'us-east-1', accessKeyId: 'KEY', secretAccessKey: 'SECRET' })
+  })
+  afterAll(() => new Promise<void>(r => fake.server.close(() => r())))
+
+  it('sends a large stream as a multipart upload of 8 MiB parts and reads back any range', async () => {
+    const size = 20 * 1024 * 1024 + 123
+    const data = Buffer.alloc(size)
+    for (let i = 0; i < size; i += 4096) data.writeUInt32BE(i, i)
+    fake.log.length = 0
+    await store.put('ab/big', Readable.from((function* () {
+      for (let i = 0; i < size; i += 65536) yield data.subarray(i, i + 65536)
+    })()))
+    expect(fake.log.map(l => `${l.method} ${l.query.replace(/uploadId=u\d+/, 'uploadId=*')} ${l.bytes}`)).toEqual([
+      'POST ?uploads= 0',
+      `PUT ?partNumber=1&uploadId=* ${8 * 1024 * 1024}`,
+      `PUT ?partNumber=2&uploadId=* ${8 * 1024 * 1024}`,
+      `PUT ?partNumber=3&uploadId=* ${size - 16 * 1024 * 1024}`,
+      expect.stringMatching(/^POST \?uploadId=\* \d+$/),
+    ])
+    expect(fake.objects.get('ab/big')!.body.equals(data)).toBe(true)
+    expect((await text(await store.get('ab/big', { start: 8 * 1024 * 1024 - 2, end: 8 * 1024 * 1024 + 5 }))).equals(data.subarray(8 * 1024 * 1024 - 2, 8 * 1024 * 1024 + 6))).toBe(true)
+  })
+
+  it('sends a small stream in one PUT, lists across pages and deletes', async () => {
+    await store.put('cd/small', Readable.from([Buffer.from('tiny')]))
+    await store.put('ef/other', Readable.from([Buffer.from('x')]))
+    expect((await text(await store.get('cd/small'))).toString()).toBe('tiny')
+    const keys: string[] = []
+    for await (const o of store.list()) keys.push(o.key)
+    expect(keys).toEqual(['ab/big', 'cd/small', 'ef/other'])
+    await store.remove('cd/small')
+    await store.remove('cd/small')
+    expect(fake.objects.has('cd/small')).toBe(false)
+    await expect(store.get('cd/small')).rejects.toThrow(/404/)
+  })
+
+  it('gives up a multipart upload whose stream fails, leaving no upload open', async () => {
+    const failing = Readable.from((async function* () {
+      yield Buffer.alloc(9 * 1024 * 1024)
+      throw new Error('the client went away')
+    })())
+    await expect(store.put('ab/broken', failing)).rejects.toThrow(/went away/)
+    expect(fake.uploads.size).toBe(0)
+    expect(fake.objects.has('ab/broken')).toBe(false)
+  })
+})
