@@ -310,7 +310,9 @@ async function seedBoard(ctx: Context, n: number) {
 /** The rows of the board, by the same statements the board request runs, side by side, from this process. */
 async function rawBoard(db: Knex, buildId: string, teamId: string) {
   const [findings] = await Promise.all([
-    db.raw(`SELECT f.id, f.title, f.lane, f.severity, f.rank, f.version, f.created_at, f.updated_at, f.description, s.label AS seen_label, s.seq AS seen_seq
+    db.raw(`SELECT f.id, f.title, f.lane, f.severity, f.rank, f.version,
+        to_char(f.created_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') AS created_at, to_char(f.updated_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') AS updated_at,
+        s.label AS seen_label, s.seq AS seen_seq, f.description
       FROM findings f LEFT JOIN revisions s ON s.id = f.seen_on_revision_id WHERE f.build_id = ?
       ORDER BY array_position(ARRAY['spotted','traced','bench','retest','closed','parked']::text[], f.lane::text), (f.severity <> 'safety'), f.rank`, [buildId]),
     db.raw(`SELECT ft.finding_id, t.id, t.key FROM finding_targets ft JOIN findings f ON f.id = ft.finding_id JOIN targets t ON t.id = ft.target_id

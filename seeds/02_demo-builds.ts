@@ -11,7 +11,10 @@ import { insertTarget } from '../server/utils/targets'
 // ones the server would compute. Idempotent: what exists is left as it is.
 //
 // The story of Trailhopper by R5: speed, torque and mass Met; peak current Marginal; the case
-// temperature Slipped in R4 (sealed housing, smaller fins) and is still Short.
+// temperature Slipped in R4 (sealed housing, smaller fins) and is still Short. R2's firmware
+// cut-off moved the top speed into its band; R3's planetary stage moved the torque. The wheel
+// power is derived (wheel torque × wheel speed, P = τω) and carries the propagated uncertainty.
+// A target added here after a database was seeded gets its readings on the existing revisions.
 
 interface DemoTarget {
   key: string
@@ -23,6 +26,7 @@ interface DemoTarget {
   stretch?: number
   noiseBand?: number
   notes?: string
+  formula?: string
 }
 
 interface DemoReading {
@@ -60,6 +64,8 @@ const trailhopper: DemoBuild = {
     { key: 'unit_mass', name: 'Drive-unit mass', unit: 'kg', comparator: 'atMost', threshold: 4.2, stretch: 3.9, noiseBand: 0.05, notes: 'Hub motor, carrier, gearing and fasteners; without the wheel.' },
     { key: 'peak_current', name: 'Peak battery current', unit: 'A', comparator: 'atMost', threshold: 30, noiseBand: 0.5, notes: 'Standing start on a 12 % ramp, clamp meter on the battery lead (peak hold).' },
     { key: 'case_temp', name: 'Motor case temperature after a 20-minute climb', unit: '°C', comparator: 'atMost', threshold: 80, noiseBand: 2, notes: '20 minutes at 8 % with 100 kg, ambient 20–24 °C, thermocouple on the case.' },
+    { key: 'wheel_speed', name: 'Wheel speed at continuous torque', unit: 'rpm', comparator: 'atLeast', threshold: 50, noiseBand: 1, notes: 'Roller dyno holding the continuous-torque load; wheel encoder.' },
+    { key: 'wheel_power', name: 'Mechanical power at the wheel', unit: 'W', comparator: 'atLeast', threshold: 250, stretch: 275, formula: 'wheel_torque * wheel_speed', notes: 'Derived: P = τω at the continuous-torque point (torque arm and wheel encoder on the same run).' },
   ],
   revisions: [
     {
@@ -75,6 +81,7 @@ const trailhopper: DemoBuild = {
         { target: 'unit_mass', values: [4.86, 4.87, 4.86], unit: 'kg', method: 'Platform scale', resolution: 0.01 },
         { target: 'peak_current', values: [35.2, 34.8, 35.5, 35.1, 34.9], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1 },
         { target: 'case_temp', values: [71.5, 72.0, 70.8, 71.9], unit: '°C', method: 'Type K thermocouple on the case', resolution: 0.5, by: 'engineer2' },
+        { target: 'wheel_speed', values: [60.2, 60.8, 59.9, 60.5, 60.4], unit: 'rpm', method: 'Roller dyno, wheel encoder', resolution: 0.1 },
       ],
     },
     {
@@ -90,6 +97,7 @@ const trailhopper: DemoBuild = {
         { target: 'unit_mass', values: [9.59, 9.60, 9.58], unit: 'lb', method: 'Hanging scale', resolution: 0.01 },
         { target: 'peak_current', values: [35.0, 35.3, 34.7, 35.2], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1 },
         { target: 'case_temp', values: [163.4, 162.5, 164.1, 163.0], unit: '°F', method: 'IR thermometer, case centre', resolution: 0.5, by: 'engineer2' },
+        { target: 'wheel_speed', values: [60.6, 61.0, 60.3, 60.9], unit: 'rpm', method: 'Roller dyno, wheel encoder', resolution: 0.1 },
       ],
     },
     {
@@ -105,6 +113,7 @@ const trailhopper: DemoBuild = {
         { target: 'unit_mass', values: [4.37, 4.38, 4.37], unit: 'kg', method: 'Platform scale', resolution: 0.01 },
         { target: 'peak_current', values: [30.4, 29.6, 30.9, 29.8, 30.2, 30.5], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1 },
         { target: 'case_temp', values: [74.2, 73.5, 74.8, 74.0, 73.9], unit: '°C', method: 'Type K thermocouple on the case', resolution: 0.5, by: 'engineer2' },
+        { target: 'wheel_speed', values: [52.1, 52.6, 51.8, 52.4, 52.0], unit: 'rpm', method: 'Roller dyno, wheel encoder', resolution: 0.1 },
       ],
     },
     {
@@ -119,6 +128,7 @@ const trailhopper: DemoBuild = {
         { target: 'unit_mass', values: [9.10, 9.11, 9.09], unit: 'lb', method: 'Hanging scale', resolution: 0.02 },
         { target: 'peak_current', values: [30.6, 29.9, 30.8, 30.1, 30.5], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1 },
         { target: 'case_temp', values: [182.3, 183.6, 181.9, 183.0, 182.7], unit: '°F', method: 'IR thermometer, case centre', resolution: 0.5, by: 'engineer2' },
+        { target: 'wheel_speed', values: [5.59, 5.65, 5.56, 5.61, 5.60], unit: 'rad/s', method: 'Roller dyno, posted by the rig', resolution: 0.01, by: 'rig' },
       ],
     },
     {
@@ -133,6 +143,7 @@ const trailhopper: DemoBuild = {
         { target: 'unit_mass', values: [3.98, 3.99, 3.98, 3.99], unit: 'kg', method: 'Platform scale', resolution: 0.01 },
         { target: 'peak_current', values: [29.2, 30.1, 29.6, 30.3, 29.5, 29.9], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1 },
         { target: 'case_temp', values: [82.9, 83.6, 82.4, 83.1], unit: '°C', method: 'Type K thermocouple on the case', resolution: 0.5, by: 'engineer2' },
+        { target: 'wheel_speed', values: [55.6, 56.1, 55.8, 55.9, 55.7], unit: 'rpm', method: 'Roller dyno, posted by the rig', resolution: 0.1, by: 'rig' },
       ],
     },
   ],
@@ -231,16 +242,16 @@ async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<
   const build = await trx('builds').where({ slug: demo.slug }).first('id')
   if (!build) return
   const owner = people.owner ?? null
+  const added = new Set<string>()
   for (const t of demo.targets) {
     if (!(await trx('targets').where({ build_id: build.id, key: t.key }).first('id'))) {
-      await insertTarget(trx, build.id, { ...t, notes: t.notes ?? '' }, owner)
+      await insertTarget(trx, build.id, { ...t, notes: t.notes ?? '', formula: t.formula ?? null }, owner)
+      added.add(t.key)
     }
   }
   const rigTokenId = demo.rigToken ? await demoRigToken(trx, build.id, demo.rigToken, owner) : null
-  for (const r of demo.revisions) {
-    if (await trx('revisions').where({ build_id: build.id, label: r.label }).first('id')) continue
-    await insertRevision(trx, build.id, { label: r.label, summary: r.summary, changes: r.changes, parameters: r.parameters, builtOn: r.builtOn }, owner)
-    for (const [i, reading] of r.readings.entries()) {
+  const record = async (r: DemoRevision, readings: DemoReading[]) => {
+    for (const reading of readings) {
       const by = reading.by ?? 'engineer'
       await insertReading(trx, build.id, {
         revision: r.label,
@@ -249,9 +260,25 @@ async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<
         unit: reading.unit,
         method: reading.method,
         resolution: reading.resolution,
-        takenAt: `${r.builtOn}T${String(9 + i).padStart(2, '0')}:30:00Z`,
+        takenAt: `${r.builtOn}T${String(9 + r.readings.indexOf(reading)).padStart(2, '0')}:30:00Z`,
       }, by === 'rig' ? { userId: null, rigTokenId } : { userId: people[by] ?? null, rigTokenId: null })
     }
+  }
+  for (const r of demo.revisions) {
+    const existing = await trx('revisions').where({ build_id: build.id, label: r.label })
+      .first('id', trx.raw('frozen_at::text AS frozen_at'), 'frozen_by') as { id: string, frozen_at: string | null, frozen_by: string | null } | undefined
+    if (existing) {
+      // a demo target added since this database was seeded: its readings on the existing revision,
+      // which keeps its sign-off (reopened and signed again inside this transaction, no event)
+      const missing = r.readings.filter(x => added.has(x.target))
+      if (missing.length === 0) continue
+      if (existing.frozen_at) await trx('revisions').where({ id: existing.id }).update({ frozen_at: null })
+      await record(r, missing)
+      if (existing.frozen_at) await trx('revisions').where({ id: existing.id }).update({ frozen_at: trx.raw('?::timestamptz', [existing.frozen_at]), frozen_by: existing.frozen_by })
+      continue
+    }
+    await insertRevision(trx, build.id, { label: r.label, summary: r.summary, changes: r.changes, parameters: r.parameters, builtOn: r.builtOn }, owner)
+    await record(r, r.readings)
     if (r.signedOff) await freezeRevision(trx, await findRevision(trx, build.id, r.label), people.reviewer ?? null)
   }
 }

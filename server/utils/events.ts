@@ -73,9 +73,10 @@ function shown(s: TargetSnapshot | null, factor: number, offset: number) {
 /**
  * Compares a target's state before and after a change (same transaction) and records
  * `target.met` or `target.slipped`, with before → after in the target's display unit.
+ * `given`: the state after, when it isn't a cached cell (a derived target's).
  */
-export async function recordTargetChange(trx: Knex.Transaction, target: { id: string, build_id: string, unit: string }, before: TargetSnapshot | null) {
-  const after = await targetSnapshot(trx, target.id)
+export async function recordTargetChange(trx: Knex.Transaction, target: { id: string, build_id: string, unit: string }, before: TargetSnapshot | null, given?: TargetSnapshot | null) {
+  const after = given !== undefined ? given : await targetSnapshot(trx, target.id)
   const change = targetTransition(before, after)
   if (!change || !after) return
   const unit = parseUnit(target.unit)

@@ -42,7 +42,8 @@ async function touch(trx: Knex.Transaction, findingId: string) {
 }
 
 export async function addFix(trx: Knex.Transaction, f: FindingRow, body: z.output<typeof FixBody>, actor: FindingActor): Promise<FixView> {
-  const [owner, landed] = await Promise.all([ownerOf(trx, f.build_id, body.ownerId), landedRevision(trx, f.build_id, body.landedIn)])
+  const owner = await ownerOf(trx, f.build_id, body.ownerId)
+  const landed = await landedRevision(trx, f.build_id, body.landedIn)
   const [row] = await trx('fixes').insert({
     finding_id: f.id,
     description: body.description,

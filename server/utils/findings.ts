@@ -53,6 +53,8 @@ export function findingActor(access: Pick<BuildAccess, 'user' | 'rigTokenId' | '
 
 export interface FindingAccess extends BuildAccess {
   findingId: string
+  /** the finding as it was when the request came in (writes lock it, or check its version as they write) */
+  finding: FindingRow
 }
 
 /**
@@ -60,18 +62,25 @@ export interface FindingAccess extends BuildAccess {
  * up; a finding outside the caller's teams is a 404.
  */
 export async function requireFindingRole(event: H3Event, min: Role, opts: { allowRigToken?: boolean } = {}): Promise<FindingAccess> {
-  if (!(opts.allowRigToken && bearerToken(event))) await requireUser(event)
   const id = uuidParam(event, 'id')
-  const row = await useDb()('findings').where({ id }).first('build_id')
-  if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
-  const access = await requireBuildRole(event, row.build_id, min, opts)
-  return { ...access, findingId: id }
+  // the session check and the lookup side by side: a 401 still wins over a 404
+  const [, finding] = await Promise.all([
+    opts.allowRigToken && bearerToken(event) ? null : requireUser(event),
+    useDb()('findings').where({ id }).first() as Promise<FindingRow | undefined>,
+  ])
+  if (!finding) throw createError({ statusCode: 404, message: 'Finding not found' })
+  const access = await requireBuildRole(event, finding.build_id, min, opts)
+  return { ...access, findingId: id, finding }
 }
 
 /** Serialises writes to one build's board until the transaction ends. */
 export async function lockBoard(trx: Knex.Transaction, buildId: string) {
   await trx.raw('SELECT pg_advisory_xact_lock(hashtextextended(?, 0))', [`findings-board:${buildId}`])
 }
+
+// timestamps as ISO 8601 text in UTC straight from the database (a board reads thousands)
+const isoOf = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`
+const ISO_TIMES = `${isoOf('f.created_at')} AS created_at, ${isoOf('f.updated_at')} AS updated_at`
 
 const LANE_ORDER = `array_position(ARRAY[${LANES.map(l => `'${l}'`).join(', ')}]::text[], f.lane::text)`
 
@@ -116,8 +125,9 @@ interface ListedRow {
   rank: string
   version: number
   description?: string
-  created_at: Date
-  updated_at: Date
+  /** ISO 8601 text, formatted by the database (ISO_TIMES) */
+  created_at: string
+  updated_at: string
   seen_label: string | null
   seen_seq: number | null
 }
@@ -133,10 +143,9 @@ function scoped<T extends Knex.QueryBuilder>(q: T, buildId: string, o: ListOptio
 
 /** The build's revisions that hold readings, with the status of each target tested there. */
 export async function revisionCells(db: Db, buildId: string): Promise<VerificationFacts['revisions']> {
-  const [revisions, cells] = await Promise.all([
-    db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq') as Promise<{ id: string, label: string, seq: number }[]>,
-    db('cell_stats').where({ build_id: buildId }).select('revision_id', 'target_id', 'status') as Promise<{ revision_id: string, target_id: string, status: CellStatus }[]>,
-  ])
+  // one after the other: `db` may be a transaction (one connection)
+  const revisions = await db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq') as { id: string, label: string, seq: number }[]
+  const cells = await db('cell_stats').where({ build_id: buildId }).select('revision_id', 'target_id', 'status') as { revision_id: string, target_id: string, status: CellStatus }[]
   const byRevision = new Map<string, Record<string, CellStatus>>()
   for (const c of cells) {
     const m = byRevision.get(c.revision_id) ?? {}
@@ -155,7 +164,7 @@ interface Listed {
 async function listRows(db: Db, buildId: string, o: ListOptions, withDescription: boolean): Promise<Listed> {
   const [rows, targetRows, fixRows] = await Promise.all([
     scoped(db('findings as f').leftJoin('revisions as s', 's.id', 'f.seen_on_revision_id'), buildId, o)
-      .select('f.id', 'f.title', 'f.lane', 'f.severity', 'f.rank', 'f.version', 'f.created_at', 'f.updated_at',
+      .select('f.id', 'f.title', 'f.lane', 'f.severity', 'f.rank', 'f.version', db.raw(ISO_TIMES),
         's.label as seen_label', 's.seq as seen_seq', ...(withDescription ? ['f.description'] : []))
       .orderByRaw(`${LANE_ORDER}, (f.severity <> 'safety'), f.rank`) as Promise<ListedRow[]>,
     scoped(db('finding_targets as ft').join('findings as f', 'f.id', 'ft.finding_id').join('targets as t', 't.id', 'ft.target_id'), buildId, o)
@@ -189,27 +198,51 @@ function summaryOf(r: ListedRow, l: Listed): FindingSummary {
     seenOn: r.seen_label,
     targets: (l.targets.get(r.id) ?? []).map(t => t.key),
     fixes: (l.fixes.get(r.id) ?? []).map(fixView),
-    createdAt: new Date(r.created_at).toISOString(),
-    updatedAt: new Date(r.updated_at).toISOString(),
+    createdAt: r.created_at,
+    updatedAt: r.updated_at,
   }
+}
+
+// One finding as API v1 shows it, as the select list over a findings row `f`; a SELECT and an
+// UPDATE … RETURNING both use it, so a move answers in the statement that makes it.
+const SUMMARY_COLUMNS = `f.id, f.title, f.lane, f.severity, f.rank, f.version, ${ISO_TIMES},
+  (SELECT s.label FROM revisions s WHERE s.id = f.seen_on_revision_id) AS seen_label,
+  (SELECT s.seq FROM revisions s WHERE s.id = f.seen_on_revision_id) AS seen_seq,
+  COALESCE((SELECT json_agg(json_build_object('id', t.id, 'key', t.key) ORDER BY t.position, t.key)
+    FROM finding_targets ft JOIN targets t ON t.id = ft.target_id WHERE ft.finding_id = f.id), '[]') AS targets,
+  COALESCE((SELECT json_agg(json_build_object('id', x.id, 'finding_id', x.finding_id, 'description', x.description, 'state', x.state,
+      'owner_id', x.owner_id, 'owner_name', u.name, 'due_on', to_char(x.due_on, 'YYYY-MM-DD'), 'landed_label', lr.label, 'landed_seq', lr.seq)
+      ORDER BY x.created_at, x.id)
+    FROM fixes x LEFT JOIN users u ON u.id = x.owner_id LEFT JOIN revisions lr ON lr.id = x.landed_revision_id
+    WHERE x.finding_id = f.id), '[]') AS fixes`
+
+type SummaryRow = ListedRow & { targets: { id: string, key: string }[], fixes: FixJoinedRow[] }
+
+function summaryOfRow(row: SummaryRow): FindingSummary {
+  return summaryOf(row, { rows: [row], targets: new Map([[row.id, row.targets]]), fixes: new Map([[row.id, row.fixes]]) })
 }
 
 /** One finding as API v1 shows it, in one statement (the answer to every write). */
 export async function findingSummary(db: Db, id: string): Promise<FindingSummary> {
-  const { rows } = await db.raw(`
-    SELECT f.id, f.title, f.lane, f.severity, f.rank, f.version, f.created_at, f.updated_at, s.label AS seen_label, s.seq AS seen_seq,
-      COALESCE((SELECT json_agg(json_build_object('id', t.id, 'key', t.key) ORDER BY t.position, t.key)
-        FROM finding_targets ft JOIN targets t ON t.id = ft.target_id WHERE ft.finding_id = f.id), '[]') AS targets,
-      COALESCE((SELECT json_agg(json_build_object('id', x.id, 'finding_id', x.finding_id, 'description', x.description, 'state', x.state,
-          'owner_id', x.owner_id, 'owner_name', u.name, 'due_on', to_char(x.due_on, 'YYYY-MM-DD'), 'landed_label', lr.label, 'landed_seq', lr.seq)
-          ORDER BY x.created_at, x.id)
-        FROM fixes x LEFT JOIN users u ON u.id = x.owner_id LEFT JOIN revisions lr ON lr.id = x.landed_revision_id
-        WHERE x.finding_id = f.id), '[]') AS fixes
-    FROM findings f LEFT JOIN revisions s ON s.id = f.seen_on_revision_id
-    WHERE f.id = ?`, [id]) as { rows: (ListedRow & { targets: { id: string, key: string }[], fixes: FixJoinedRow[] })[] }
-  const row = rows[0]
-  if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
-  return summaryOf(row, { rows: [row], targets: new Map([[row.id, row.targets]]), fixes: new Map([[row.id, row.fixes]]) })
+  const { rows } = await db.raw(`SELECT ${SUMMARY_COLUMNS} FROM findings f WHERE f.id = ?`, [id]) as { rows: SummaryRow[] }
+  if (!rows[0]) throw createError({ statusCode: 404, message: 'Finding not found' })
+  return summaryOfRow(rows[0])
+}
+
+/** Marks a value for writeIfCurrent: the database's clock. */
+const NOW = Symbol('now')
+
+/**
+ * Writes `sets` to the finding only if it is still at `version` (raising the version), and
+ * returns its summary; null when someone else wrote first. One statement.
+ */
+async function writeIfCurrent(trx: Knex.Transaction, id: string, version: number, sets: Record<string, unknown>): Promise<FindingSummary | null> {
+  const columns = Object.keys(sets)
+  const assign = columns.map(c => (sets[c] === NOW ? `${c} = now()` : `${c} = ?`))
+  const values = columns.filter(c => sets[c] !== NOW).map(c => sets[c])
+  const { rows } = await trx.raw(`UPDATE findings AS f SET ${[...assign, 'version = f.version + 1', 'updated_at = now()'].join(', ')}
+    WHERE f.id = ? AND f.version = ? RETURNING ${SUMMARY_COLUMNS}`, [...values, id, version] as Knex.RawBinding[]) as { rows: SummaryRow[] }
+  return rows[0] ? summaryOfRow(rows[0]) : null
 }
 
 /** API v1's list: the build's findings by lane, safety first, then by rank. */
@@ -241,14 +274,18 @@ export async function buildBoard(db: Db, build: { id: string, slug: string, name
   ])
   const commentCount = new Map(comments.map(c => [c.finding_id, c.n]))
   const findings: FindingCard[] = l.rows.map((r) => {
-    const v = verificationOf(verificationFactsOf({ seq: r.seen_seq, label: r.seen_label }, l.targets.get(r.id) ?? [], l.fixes.get(r.id) ?? [], revisions))
-    return {
-      ...summaryOf(r, l),
-      description: r.description ?? '',
-      comments: commentCount.get(r.id) ?? 0,
-      verifiedOn: v.revision?.label ?? null,
-      closeBlocker: v.revision ? null : v.reason,
+    const card = summaryOf(r, l) as FindingCard
+    card.description = r.description ?? ''
+    card.comments = commentCount.get(r.id) ?? 0
+    card.verifiedOn = null
+    card.closeBlocker = null
+    // a closed card has nothing left to verify
+    if (r.lane !== 'closed') {
+      const v = verificationOf(verificationFactsOf({ seq: r.seen_seq, label: r.seen_label }, l.targets.get(r.id) ?? [], l.fixes.get(r.id) ?? [], revisions))
+      if (v.revision) card.verifiedOn = v.revision.label
+      else card.closeBlocker = v.reason
     }
+    return card
   })
   return {
     build: { id: build.id, slug: build.slug, name: build.name },
@@ -322,9 +359,9 @@ export async function lockFinding(trx: Knex.Transaction, id: string): Promise<Fi
 const EVENT_WORDS: Record<string, string> = { 'created': 'created it', 'edited': 'edited it', 'moved': 'moved it', 'fix-added': 'added a fix', 'fix-edited': 'changed a fix' }
 
 /** 409 for a write that names an older version, with the finding as it is now. */
-export async function staleWrite(trx: Db, f: FindingRow, sent: number) {
-  const last = await trx('finding_events').where({ finding_id: f.id }).orderBy('id', 'desc').first('kind', 'actor_label', 'detail') as { kind: string, actor_label: string, detail: { to?: Lane } } | undefined
-  const current = await findingSummary(trx, f.id)
+export async function staleWrite(trx: Db, id: string, sent: number) {
+  const last = await trx('finding_events').where({ finding_id: id }).orderBy('id', 'desc').first('kind', 'actor_label', 'detail') as { kind: string, actor_label: string, detail: { to?: Lane } } | undefined
+  const current = await findingSummary(trx, id)
   let what = ''
   if (last) {
     what = last.kind === 'moved' && last.detail.to ? `moved it to ${LANE_LABELS[last.detail.to]}` : EVENT_WORDS[last.kind] ?? 'changed it'
@@ -332,8 +369,8 @@ export async function staleWrite(trx: Db, f: FindingRow, sent: number) {
   }
   return createError({
     statusCode: 409,
-    message: `This finding changed since you loaded it (you had version ${sent}, it is now at ${f.version}).${what} Reload it and try again.`,
-    data: { current, version: f.version },
+    message: `This finding changed since you loaded it (you had version ${sent}, it is now at ${current.version}).${what} Reload it and try again.`,
+    data: { current, version: current.version },
   })
 }
 
@@ -343,7 +380,7 @@ async function bumpVersion(trx: Knex.Transaction, id: string, changes: Record<st
 
 /** Edits title, description, severity, seen-on revision and targets; 409 for a stale version. */
 export async function editFinding(trx: Knex.Transaction, f: FindingRow, patch: z.output<typeof FindingPatch>, actor: FindingActor): Promise<FindingSummary> {
-  if (patch.version !== f.version) throw await staleWrite(trx, f, patch.version)
+  if (patch.version !== f.version) throw await staleWrite(trx, f.id, patch.version)
   const changes: Record<string, unknown> = {}
   const detail: Record<string, unknown> = {}
   if (patch.title !== undefined && patch.title !== f.title) {
@@ -387,12 +424,13 @@ export async function editFinding(trx: Knex.Transaction, f: FindingRow, patch: z
 
 /** What the lane rules look at for one finding. */
 export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes: number, verification: Verification }> {
-  const [seen, targets, fixes, revisions] = await Promise.all([
-    f.seen_on_revision_id ? db('revisions').where({ id: f.seen_on_revision_id }).first('seq', 'label') : Promise.resolve(null),
-    db('finding_targets as ft').join('targets as t', 't.id', 'ft.target_id').where('ft.finding_id', f.id).orderBy([{ column: 't.position' }, { column: 't.key' }]).select('t.id', 't.key'),
-    db('fixes as x').leftJoin('revisions as lr', 'lr.id', 'x.landed_revision_id').where('x.finding_id', f.id).select('x.state', 'lr.seq as landed_seq', 'lr.label as landed_label'),
-    revisionCells(db, f.build_id),
-  ])
+  // one after the other: `db` is the move's transaction
+  const seen = f.seen_on_revision_id ? await db('revisions').where({ id: f.seen_on_revision_id }).first('seq', 'label') : null
+  const targets = await db('finding_targets as ft').join('targets as t', 't.id', 'ft.target_id').where('ft.finding_id', f.id)
+    .orderBy([{ column: 't.position' }, { column: 't.key' }]).select('t.id', 't.key')
+  const fixes = await db('fixes as x').leftJoin('revisions as lr', 'lr.id', 'x.landed_revision_id').where('x.finding_id', f.id)
+    .select('x.state', 'lr.seq as landed_seq', 'lr.label as landed_label')
+  const revisions = await revisionCells(db, f.build_id)
   const facts = verificationFactsOf({ seq: seen?.seq ?? null, label: seen?.label ?? null }, targets, fixes, revisions)
   return { landedFixes: facts.landedIn.length, verification: verificationOf(facts) }
 }
@@ -403,17 +441,26 @@ async function landedFixesOf(db: Db, findingId: string): Promise<number> {
   return Number(row?.n ?? 0)
 }
 
-interface Neighbour { id: string, lane: Lane, rank: string, title: string }
+interface Neighbour { id: string, lane: Lane, rank: string, title: string, prev_rank: string | null, next_rank: string | null }
 
 function boardChanged(message: string) {
   return createError({ statusCode: 409, message: `The board changed since you loaded it: ${message}. Reload the board and try again.` })
 }
 
-/** The ranks the moved card goes between, from the neighbours the caller named. */
+/** The ranks the moved card goes between, from the neighbours the caller named (one query). */
 async function slotOf(trx: Knex.Transaction, f: FindingRow, lane: Lane, before?: string, after?: string): Promise<[string | null, string | null]> {
   const ids = [before, after].filter((x): x is string => Boolean(x))
   if (ids.includes(f.id)) throw createError({ statusCode: 400, message: 'A card can’t be placed next to itself', data: { fields: { [before === f.id ? 'before' : 'after']: 'The moved card itself' } } })
-  const rows = ids.length ? await trx('findings').where({ build_id: f.build_id }).whereIn('id', ids).select('id', 'lane', 'rank', 'title') as Neighbour[] : []
+  if (!ids.length) {
+    const last = await trx('findings').where({ build_id: f.build_id, lane }).whereNot('id', f.id).orderBy('rank', 'desc').first('rank')
+    return [last?.rank ?? null, null]
+  }
+  // each neighbour with the ranks around it in its lane, leaving the moved card out
+  const { rows } = await trx.raw(`
+    SELECT n.id, n.lane, n.rank, n.title,
+      (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank < n.rank AND p.id <> ? ORDER BY p.rank DESC LIMIT 1) AS prev_rank,
+      (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank > n.rank AND p.id <> ? ORDER BY p.rank ASC LIMIT 1) AS next_rank
+    FROM findings n WHERE n.build_id = ? AND n.id = ANY(CAST(? AS uuid[]))`, [f.id, f.id, f.build_id, ids]) as { rows: Neighbour[] }
   const find = (id: string | undefined, field: string) => {
     if (!id) return null
     const row = rows.find(r => r.id === id)
@@ -423,21 +470,12 @@ async function slotOf(trx: Knex.Transaction, f: FindingRow, lane: Lane, before?:
   }
   const below = find(before, 'before')
   const above = find(after, 'after')
-  const lanePeers = () => trx('findings').where({ build_id: f.build_id, lane }).whereNot('id', f.id)
   if (above && below) {
     if (!(above.rank < below.rank)) throw boardChanged(`“${above.title}” is no longer above “${below.title}”`)
     return [above.rank, below.rank]
   }
-  if (below) {
-    const prev = await lanePeers().where('rank', '<', below.rank).orderBy('rank', 'desc').first('rank')
-    return [prev?.rank ?? null, below.rank]
-  }
-  if (above) {
-    const next = await lanePeers().where('rank', '>', above.rank).orderBy('rank', 'asc').first('rank')
-    return [above.rank, next?.rank ?? null]
-  }
-  const last = await lanePeers().orderBy('rank', 'desc').first('rank')
-  return [last?.rank ?? null, null]
+  if (below) return [below.prev_rank, below.rank]
+  return [above!.rank, above!.next_rank]
 }
 
 /** Gives the lane fresh, short ranks with the moved card between `prev` and `next`; returns its rank. */
@@ -469,7 +507,8 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
   if (body.override && actor.role !== 'owner') {
     throw createError({ statusCode: 403, message: 'Only an Owner can override a lane rule' })
   }
-  if (body.version !== f.version) throw await staleWrite(trx, f, body.version)
+  // `f` was read before the board's lock: the write below checks the version again
+  if (body.version !== f.version) throw await staleWrite(trx, f.id, body.version)
   const lane = body.lane
   const changesLane = lane !== f.lane
   let override: { reason: string, rule: string } | null = null
@@ -504,7 +543,7 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
 
   const closing: Record<string, unknown> = {}
   if (changesLane && lane === 'closed') {
-    closing.closed_at = trx.fn.now()
+    closing.closed_at = NOW
     closing.verified_revision_id = verifiedBy ? (await trx('revisions').where({ build_id: f.build_id, seq: verifiedBy.seq }).first('id'))?.id ?? null : null
     closing.override_reason = override?.reason ?? null
     closing.override_by = override ? actor.userId : null
@@ -512,7 +551,8 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
   else if (changesLane && f.lane === 'closed') {
     Object.assign(closing, { closed_at: null, verified_revision_id: null, override_reason: null, override_by: null })
   }
-  await bumpVersion(trx, f.id, { lane, rank, ...closing })
+  const finding = await writeIfCurrent(trx, f.id, body.version, { lane, rank, ...closing })
+  if (!finding) throw await staleWrite(trx, f.id, body.version)
   if (changesLane) {
     await recordFindingEvent(trx, f.id, 'moved', actor, {
       from: f.lane,
@@ -521,7 +561,7 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
       ...(override ? { override } : {}),
     })
   }
-  return { finding: await findingSummary(trx, f.id), respread, override: Boolean(override) }
+  return { finding, respread, override: Boolean(override) }
 }
 
 /** Per target key, the open findings (not Closed or Parked) that hurt it; safety first. */

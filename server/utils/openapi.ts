@@ -20,7 +20,7 @@ function errors(...codes: number[]) {
     403: 'The role is too low, or a rig token used outside its build routes',
     404: 'Not found, or not visible to the caller',
     409: 'Conflicts with the current state (a duplicate, a frozen revision)',
-    422: 'A unit that is unknown or of another quantity',
+    422: 'A unit that is unknown or of another quantity; a formula naming a key that is not a target of the build, giving another quantity than the target’s, or closing a circle of formulas',
   }
   return Object.fromEntries(codes.map(c => [String(c), { description: text[c], content: { 'application/json': { schema: ref('Error') } } }]))
 }
@@ -300,6 +300,12 @@ export const openApiDocument = {
           stretch: nullableNum,
           noiseBand: { ...nullableNum, minimum: 0, description: 'smallest change that matters' },
           notes: str,
+          formula: {
+            type: ['string', 'null'],
+            maxLength: 500,
+            description: 'makes it a derived target: a formula over other targets’ keys, e.g. "wheel_torque * wheel_speed" (numbers, keys, + − * / ^, parentheses, pi, sqrt() abs() sin() cos() tan() exp() log() log10()). '
+              + 'Each key stands for that target’s pooled mean in SI; the result must be of this target’s quantity. A derived target takes no readings.',
+          },
         },
       },
       Target: {
@@ -321,6 +327,8 @@ export const openApiDocument = {
           archived: { type: 'boolean' },
           caution: { type: 'boolean', description: 'the number touches something that can hurt (current, voltage, heat, spinning parts)' },
           hazard: { type: ['string', 'null'], enum: ['electrical', 'thermal', 'mechanical', null] },
+          derived: { type: 'boolean', description: 'evaluated from other targets by `formula`; takes no readings of its own' },
+          formula: { type: ['string', 'null'] },
         },
       },
       RevisionCreate: {
@@ -394,7 +402,29 @@ export const openApiDocument = {
           p: { ...nullableNum, description: 'two-sided p of Welch’s test, when both sides have n ≥ 2' },
           movement: { type: ['string', 'null'], enum: ['gained', 'slipped', 'steady', null] },
           real: { type: ['boolean', 'null'] },
-          reason: { type: ['string', 'null'], enum: ['welch', 'noise-band', 'uncertainty', 'not-enough-data', null] },
+          reason: { type: ['string', 'null'], enum: ['welch', 'noise-band', 'uncertainty', 'not-enough-data', null], description: 'the rule that decided; `uncertainty` (derived targets): real when |Δ| > 2·√(u₁² + u₂²)' },
+          budget: {
+            type: 'array',
+            description: 'derived targets only (n and readings are 0): each input’s mean and u in its own unit, |∂f/∂x|·u(x) in this target’s unit, and its share of u². '
+              + 'u is propagated to first order (GUM eq. 10); the 95 % interval uses t(0.975, ν_eff) with ν_eff by Welch–Satterthwaite over the inputs (GUM G.4.1)',
+            items: {
+              type: 'object',
+              properties: { key: str, mean: num, u: nullableNum, unit: str, contribution: nullableNum, share: nullableNum },
+            },
+          },
+        },
+      },
+      Forecast: {
+        type: 'object',
+        description: 'least-squares line through the means of the last (up to 5) revisions with a value; at least 3 are needed',
+        properties: {
+          status: { type: 'string', enum: ['already-met', 'converging', 'not-converging', 'not-enough-data'] },
+          n: { type: 'integer', description: 'points the line went through' },
+          slope: { ...nullableNum, description: 'change per revision, in the display unit' },
+          crossesAfterLast: { type: ['integer', 'null'], description: 'revisions after the last point until the line meets the threshold' },
+          crossesAt: { type: ['string', 'null'], description: 'that revision’s label (guessed from the last label when it doesn’t exist yet, e.g. R7)' },
+          line: { type: 'array', items: { type: 'object', properties: { index: num, value: num } }, description: 'the fitted line at build positions (0 = first revision), extended ahead' },
+          caveat: { type: 'string', description: 'e.g. "a straight line through 4 points"' },
         },
       },
       Scoreboard: {
@@ -412,7 +442,13 @@ export const openApiDocument = {
                   status: { type: 'string', enum: ['met', 'marginal', 'short', 'untested'] },
                   latest: { oneOf: [ref('HistoryEntry'), { type: 'null' }] },
                   margin: { ...nullableNum, description: '% from the threshold, positive on the good side' },
-                  history: { type: 'array', items: ref('HistoryEntry'), description: 'one entry per revision with readings, oldest first' },
+                  history: { type: 'array', items: ref('HistoryEntry'), description: 'one entry per revision with readings (derived: with a value), oldest first' },
+                  cantEvaluate: {
+                    type: 'array',
+                    description: 'derived targets: revisions where an input has a reading but the value can’t be evaluated (an input missing, a division by zero…), with the reason',
+                    items: { type: 'object', properties: { revision: str, reason: str } },
+                  },
+                  forecast: ref('Forecast'),
                 },
               }],
             },
@@ -458,6 +494,7 @@ export const openApiDocument = {
       },
       post: {
         summary: 'Create a target; thresholds are given in its display unit',
+        description: 'With `formula` the target is derived: 400 for a formula that can’t be read, 422 naming an unknown key, both quantities of a dimension mismatch, or the circle of formulas.',
         security: both,
         requestBody: body(ref('TargetCreate')),
         responses: { 201: json(ref('Target'), 'Created'), ...errors(400, 401, 403, 404, 409, 422) },
@@ -476,7 +513,7 @@ export const openApiDocument = {
       parameters: [buildParam],
       post: {
         summary: 'Record a reading; its statistics come back in the target’s display unit',
-        description: 'Several readings of one target on one revision are pooled into one sample set. 404 for a target or revision not in the build; 409 for a frozen revision or an archived target; 422 for an unknown unit or one of another quantity.',
+        description: 'Several readings of one target on one revision are pooled into one sample set. 404 for a target or revision not in the build; 409 for a frozen revision, an archived target or a derived target (it takes no readings); 422 for an unknown unit or one of another quantity.',
         security: both,
         requestBody: body(ref('ReadingCreate')),
         responses: { 201: json(ref('ReadingCreated'), 'Created'), ...errors(400, 401, 403, 404, 409, 422), 413: { description: 'The request body is too large' } },
@@ -485,7 +522,8 @@ export const openApiDocument = {
     '/api/v1/builds/{build}/scoreboard': {
       parameters: [buildParam],
       get: {
-        summary: 'Every target with its status and per-revision history: the target strip and the readings matrix in one answer',
+        summary: 'Every target with its status, per-revision history and forecast: the target strip and the readings matrix in one answer',
+        description: 'Derived targets are evaluated per revision from their inputs’ pooled means; a revision where that fails is listed in `cantEvaluate` with the reason (never an error).',
         security: both,
         responses: { 200: json(ref('Scoreboard')), ...errors(401, 404) },
       },

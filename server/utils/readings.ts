@@ -10,6 +10,7 @@ import { assertOpen, findRevision } from './revisions'
 import { cellOfRow, refreshCell } from './statsCache'
 import { cellTargetOf, findTarget, unitProblem, type TargetRow } from './targets'
 import { recordTargetChange, targetSnapshot } from './events'
+import { derivedStates, recordDerivedChanges } from './derivedEvents'
 
 // Readings: the samples of one target on one revision. Plain Knex with the connection passed
 // in (the seed uses it too). Each write re-pools the cell and re-decides the target in the same
@@ -71,12 +72,19 @@ function tooLarge(): never {
 
 /**
  * Records a reading and updates the cell's cached statistics. 404 for a target or revision not in
- * the build, 409 for an archived target, a frozen revision or a cell that would pool more than
+ * the build, 409 for a derived or archived target, a frozen revision or a cell that would pool more than
  * MAX_SAMPLES values, 422 for a unit of another quantity.
  */
 export async function insertReading(trx: Knex.Transaction, buildId: string, body: z.output<typeof ReadingBody>, actor: ReadingActor): Promise<ReadingCreated> {
   const target = await findTarget(trx, buildId, body.target, true)
   const revision = await findRevision(trx, buildId, body.revision, 'share')
+  if (target.formula !== null) {
+    throw createError({
+      statusCode: 409,
+      message: `target: "${target.key}" is derived from a formula (${target.formula}) and takes no readings of its own; add readings of its inputs instead`,
+      data: { fields: { target: 'Derived: takes no readings' } },
+    })
+  }
   if (target.archived_at) throw createError({ statusCode: 409, message: `Target "${target.key}" is archived; restore it to add readings` })
   assertOpen(revision, 'add readings')
   let units
@@ -119,8 +127,10 @@ export async function insertReading(trx: Knex.Transaction, buildId: string, body
 
   const rule = cellTargetOf(target)
   const before = await targetSnapshot(trx, target.id)
+  const derivedBefore = await derivedStates(trx, buildId, target.key)
   const cell = await refreshCell(trx, rule, revision.id)
   await recordTargetChange(trx, target, before)
+  await recordDerivedChanges(trx, buildId, target.key, derivedBefore)
   const display = units.target
   const own = cellFromStats(stats)
   return {
@@ -143,8 +153,10 @@ export async function deleteReading(trx: Knex.Transaction, buildId: string, id: 
   const [gone] = await trx('readings').where({ id }).delete().returning('n') as { n: number }[]
   if (!gone) throw createError({ statusCode: 404, message: 'Reading not found' })
   const before = await targetSnapshot(trx, target.id)
+  const derivedBefore = await derivedStates(trx, buildId, target.key)
   await refreshCell(trx, cellTargetOf(target), revision.id)
   await recordTargetChange(trx, target, before)
+  await recordDerivedChanges(trx, buildId, target.key, derivedBefore)
   return { target, revision: revision.label, n: gone.n }
 }
 

@@ -2,10 +2,13 @@ import type { Knex } from 'knex'
 import type { BuildHealth, HistoryEntry, RevisionDetail, ScoreTarget, Scoreboard, TargetDetail } from '../../shared/types/api'
 import type { Role } from '../../shared/utils/roles'
 import { marginOf, type TargetStatus } from '../../shared/utils/conformance'
-import { parseUnit } from '../../shared/utils/units'
+import { forecastOfHistory } from '../../shared/utils/forecast'
+import { comparison, fixesLanded, loadBuildState, moversOf } from './compare'
+import { formulaKeys } from './formulas'
+import { seriesOf, type TargetSeries } from './history'
 import { readingDetail, readingsQuery, type ReadingRow } from './readings'
-import { listRevisions, revisionBrief, type RevisionRow } from './revisions'
-import { historyEntryOf, type CellRow } from './statsCache'
+import { revisionBrief, type RevisionRow } from './revisions'
+import type { CellRow } from './statsCache'
 import { findTarget, targetView, type TargetRow } from './targets'
 
 // Read models: the scoreboard (target strip and readings matrix in one answer), the target and
@@ -18,18 +21,19 @@ interface BuildRef { id: string, slug: string, name: string, summary: string, te
 
 const CELL_COLUMNS = ['target_id', 'revision_id', 'readings', 'n', 'mean', 'sd', 'u_a', 'u_b', 'u', 'nu_eff', 'ci_low', 'ci_high', 'status', 'delta', 'p', 'movement', 'real', 'reason']
 
-/** Status, latest entry and margin of a target from its history (oldest first). */
-function standing(t: TargetRow, history: HistoryEntry[]) {
+/** Status, latest entry, margin and forecast of a target from its history (oldest first). */
+function standing(t: TargetRow, history: HistoryEntry[], revisions: string[]) {
   const latest = history.at(-1) ?? null
   const view = targetView(t)
   const status: TargetStatus = latest?.status ?? 'untested'
   const margin = latest ? marginOf(latest.mean, view) : null
-  return { view, latest, status, margin }
+  const forecast = forecastOfHistory(history, revisions, view)
+  return { view, latest, status, margin, forecast }
 }
 
-function scoreTarget(t: TargetRow, history: HistoryEntry[]): ScoreTarget {
-  const { view, latest, status, margin } = standing(t, history)
-  return { ...view, status, latest, margin, history }
+function scoreTarget(t: TargetRow, series: TargetSeries, revisions: string[]): ScoreTarget {
+  const { view, latest, status, margin, forecast } = standing(t, series.history, revisions)
+  return { ...view, status, latest, margin, history: series.history, cantEvaluate: series.cantEvaluate, forecast }
 }
 
 /** A build row as the build routes answer it. */
@@ -45,41 +49,45 @@ export function buildView(b: Omit<BuildRef, 'team_id'> & { created_at: Date }) {
   }
 }
 
-/** GET /api/v1/builds/:build/scoreboard: three queries, run side by side. */
+/**
+ * GET /api/v1/builds/:build/scoreboard: three queries, run side by side. Archived targets are
+ * loaded too (a formula may use one) and left out of the answer; derived targets are evaluated
+ * from the cells loaded here, so their number doesn't change the query count.
+ */
 export async function buildScoreboard(db: Db, build: BuildRef): Promise<Scoreboard> {
   const [targets, revisions, cells] = await Promise.all([
-    db('targets').where({ build_id: build.id }).whereNull('archived_at').orderBy([{ column: 'position' }, { column: 'key' }]) as Promise<TargetRow[]>,
+    db('targets').where({ build_id: build.id }).orderBy([{ column: 'position' }, { column: 'key' }]) as Promise<TargetRow[]>,
     db('revisions as r').leftJoin('revisions as p', 'p.id', 'r.parent_id').where('r.build_id', build.id).orderBy('r.seq')
       .select('r.id', 'r.label', 'r.seq', 'r.built_on', 'r.summary', 'r.frozen_at', 'p.label as parent_label') as Promise<(RevisionRow & { parent_label: string | null })[]>,
     db('cell_stats').where({ build_id: build.id }).select(CELL_COLUMNS) as Promise<CellRow[]>,
   ])
-  const order = new Map(revisions.map((r, i) => [r.id, i]))
-  const byTarget = new Map<string, CellRow[]>()
-  for (const t of targets) byTarget.set(t.id, [])
-  for (const c of cells) byTarget.get(c.target_id)?.push(c)
+  const series = seriesOf(targets, revisions, cells)
+  const labels = revisions.map(r => r.label)
   return {
     build: { id: build.id, slug: build.slug, name: build.name, summary: build.summary, archived: build.archived_at !== null, teamId: build.team_id },
-    revisions: revisions.map(r => r.label),
+    revisions: labels,
     revisionInfo: revisions.map(r => revisionBrief(r, r.parent_label)),
-    targets: targets.map((t) => {
-      const unit = parseUnit(t.unit)
-      const own = byTarget.get(t.id)!.sort((a, b) => order.get(a.revision_id)! - order.get(b.revision_id)!)
-      return scoreTarget(t, own.map(c => historyEntryOf(c, revisions[order.get(c.revision_id)!]!.label, unit)))
-    }),
+    targets: targets.filter(t => !t.archived_at).map(t => scoreTarget(t, series.get(t.id)!, labels)),
   }
 }
 
-/** GET /api/builds/:build/targets/:key: the definition, history and every reading. */
+/**
+ * GET /api/builds/:build/targets/:key: the definition, history (evaluated when derived), every
+ * reading, the forecast, and the revisions ranked by how they moved it.
+ */
 export async function buildTargetDetail(db: Db, build: BuildRef, role: Role, key: string): Promise<TargetDetail> {
   const t = await findTarget(db, build.id, key)
-  const [cells, readings] = await Promise.all([
-    db('cell_stats as c').join('revisions as r', 'r.id', 'c.revision_id').where('c.target_id', t.id).orderBy('r.seq')
-      .select([...CELL_COLUMNS.map(c => `c.${c}`), 'r.label']) as Promise<(CellRow & { label: string })[]>,
+  const [state, readings, fixes] = await Promise.all([
+    loadBuildState(db, build.id),
     readingsQuery(db).where('rd.target_id', t.id) as Promise<(ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null })[]>,
+    fixesLanded(db, build.id),
   ])
-  const unit = parseUnit(t.unit)
-  const history = cells.map(c => historyEntryOf(c, c.label, unit))
-  const { view, latest, status, margin } = standing(t, history)
+  const series = state.series.get(t.id)!
+  const labels = state.revisions.map(r => r.label)
+  const { view, latest, status, margin, forecast } = standing(t, series.history, labels)
+  const byKey = new Map(state.targets.map(x => [x.key, x]))
+  const inputs = formulaKeys(t.formula).filter(k => byKey.has(k))
+    .map(k => ({ key: k, name: byKey.get(k)!.name, unit: byKey.get(k)!.unit, derived: byKey.get(k)!.formula !== null }))
   return {
     target: view,
     build: { id: build.id, slug: build.slug, name: build.name },
@@ -87,43 +95,56 @@ export async function buildTargetDetail(db: Db, build: BuildRef, role: Role, key
     status,
     latest,
     margin,
-    history,
+    history: series.history,
+    cantEvaluate: series.cantEvaluate,
     readings: readings.map(r => readingDetail(r, t)),
+    revisions: labels,
+    forecast,
+    movers: moversOf(series, state.revisions, fixes),
+    inputs,
   }
 }
 
-/** GET /api/builds/:build/revisions/:label: the revision and its readings, grouped by target. */
+/**
+ * GET /api/builds/:build/revisions/:label: the revision and its readings grouped by target,
+ * derived values, what it moved against its parent, and the fixes that landed in it.
+ */
 export async function buildRevisionDetail(db: Db, build: BuildRef, role: Role, rev: RevisionRow): Promise<RevisionDetail> {
-  const [[view], targets, cells, readings] = await Promise.all([
-    listRevisions(db, build.id, rev.id),
-    db('targets').where({ build_id: build.id }).whereNull('archived_at').orderBy([{ column: 'position' }, { column: 'key' }]) as Promise<TargetRow[]>,
-    db('cell_stats').where({ revision_id: rev.id }).select(CELL_COLUMNS) as Promise<CellRow[]>,
+  const [state, readings, fixes] = await Promise.all([
+    loadBuildState(db, build.id),
     readingsQuery(db).where('rd.revision_id', rev.id) as Promise<(ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null })[]>,
+    fixesLanded(db, build.id, rev.id),
   ])
-  const cellOf = new Map(cells.map(c => [c.target_id, c]))
+  const view = state.revisions.find(r => r.id === rev.id)!
+  const parent = view.parent ? state.revisions.find(r => r.label === view.parent) ?? null : null
   return {
-    ...view!,
+    ...view,
     build: { id: build.id, slug: build.slug, name: build.name },
     role,
-    targets: targets.map((t) => {
-      const cell = cellOf.get(t.id)
+    targets: state.targets.filter(t => !t.archived_at).map((t) => {
+      const series = state.series.get(t.id)!
       return {
         ...targetView(t),
-        stats: cell ? historyEntryOf(cell, rev.label, parseUnit(t.unit)) : null,
+        stats: series.history.find(h => h.revision === rev.label) ?? null,
+        cantEvaluate: series.cantEvaluate.find(c => c.revision === rev.label)?.reason ?? null,
         readings: readings.filter(r => r.target_id === t.id).map(r => readingDetail(r, t)),
       }
     }),
+    moved: parent ? comparison(build, state, parent, view, true) : null,
+    fixesLanded: fixes,
   }
 }
 
 /**
  * The team's builds with their health, newest first: targets met of the active ones (a target's
- * status is that of its latest cell), and the last revision. One query.
+ * status is that of its latest cell), and the last revision. One query; three more when a build
+ * has derived targets, whose status is evaluated from their inputs' cells.
  */
 export async function listBuildHealth(db: Db, teamId: string, includeArchived: boolean): Promise<BuildHealth[]> {
   const q = db('builds as b').where('b.team_id', teamId).orderBy('b.created_at', 'desc')
     .select('b.id', 'b.name', 'b.slug', 'b.summary', 'b.archived_at', 'b.created_at',
       db.raw('(SELECT count(*) FROM targets t WHERE t.build_id = b.id AND t.archived_at IS NULL)::int AS targets_total'),
+      db.raw('(SELECT count(*) FROM targets t WHERE t.build_id = b.id AND t.archived_at IS NULL AND t.formula IS NOT NULL)::int AS derived_total'),
       db.raw(`(SELECT count(*) FROM targets t WHERE t.build_id = b.id AND t.archived_at IS NULL AND (
           SELECT c.status FROM cell_stats c JOIN revisions r ON r.id = c.revision_id
           WHERE c.target_id = t.id ORDER BY r.seq DESC LIMIT 1) = 'met')::int AS targets_met`),
@@ -131,17 +152,35 @@ export async function listBuildHealth(db: Db, teamId: string, includeArchived: b
       // findings not yet Closed or Parked (shared/utils/lanes.ts OPEN_LANES)
       db.raw(`(SELECT count(*) FROM findings f WHERE f.build_id = b.id AND f.lane IN ('spotted', 'traced', 'bench', 'retest'))::int AS open_findings`))
   if (!includeArchived) q.whereNull('b.archived_at')
-  const rows = await q
-  return rows.map((b: BuildRef & { created_at: Date, targets_total: number, targets_met: number, last_revision: string | null, open_findings: number }) => ({
+  const rows = await q as (BuildRef & { created_at: Date, targets_total: number, derived_total: number, targets_met: number, last_revision: string | null, open_findings: number })[]
+  const derivedMet = await derivedMetByBuild(db, rows.filter(b => b.derived_total > 0).map(b => b.id))
+  return rows.map(b => ({
     id: b.id,
     name: b.name,
     slug: b.slug,
     summary: b.summary,
     archived: b.archived_at !== null,
     createdAt: new Date(b.created_at).toISOString(),
-    targetsMet: b.targets_met,
+    targetsMet: b.targets_met + (derivedMet.get(b.id) ?? 0),
     targetsTotal: b.targets_total,
     lastRevision: b.last_revision,
     openFindings: b.open_findings,
   }))
+}
+
+/** How many active derived targets of each build are Met (their latest value). */
+async function derivedMetByBuild(db: Db, buildIds: string[]): Promise<Map<string, number>> {
+  const out = new Map<string, number>()
+  if (buildIds.length === 0) return out
+  const [targets, revisions, cells] = await Promise.all([
+    db('targets').whereIn('build_id', buildIds) as Promise<TargetRow[]>,
+    db('revisions').whereIn('build_id', buildIds).orderBy('seq').select('id', 'build_id', 'label') as Promise<{ id: string, build_id: string, label: string }[]>,
+    db('cell_stats').whereIn('build_id', buildIds).select(CELL_COLUMNS.concat('build_id')) as Promise<CellRow[]>,
+  ])
+  for (const id of buildIds) {
+    const own = targets.filter(t => t.build_id === id)
+    const series = seriesOf(own, revisions.filter(r => r.build_id === id), cells.filter(c => c.build_id === id))
+    out.set(id, own.filter(t => t.formula !== null && !t.archived_at && series.get(t.id)!.history.at(-1)?.status === 'met').length)
+  }
+  return out
 }

@@ -9,6 +9,7 @@ import { targetRuleProblems, type TargetBody, type TargetPatch } from '../../sha
 import { QUANTITY_LABELS, UnitError, assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI, type Quantity, type UnitInfo } from '../../shared/utils/units'
 import { redecideTarget, type CellTarget } from './statsCache'
 import { recordTargetChange, targetSnapshot } from './events'
+import { checkTargetFormula } from './formulas'
 
 // Targets of a build. Plain Knex with the connection passed in (the seed uses it too).
 // Thresholds arrive in the display unit and are stored in SI.
@@ -40,6 +41,8 @@ export interface TargetRow {
   notes: string
   position: number
   archived_at: Date | null
+  /** a derived target's formula over other targets' keys; null for a measured target */
+  formula: string | null
   created_at: Date
   updated_at: Date
 }
@@ -88,6 +91,8 @@ export function targetView(t: TargetRow): TargetView {
     archived: t.archived_at !== null,
     caution: hazard !== null,
     hazard,
+    derived: t.formula !== null,
+    formula: t.formula,
   }
 }
 
@@ -120,6 +125,7 @@ export async function insertTarget(trx: Knex.Transaction, buildId: string, body:
     noiseBand: body.noiseBand == null ? null : diffToSI(body.noiseBand, unit),
   }
   finiteOr400(si)
+  const formula = body.formula ? await checkTargetFormula(trx, buildId, { key: body.key, unit: unit.unit }, body.formula) : null
   try {
     const [row] = await trx('targets').insert({
       build_id: buildId,
@@ -133,6 +139,7 @@ export async function insertTarget(trx: Knex.Transaction, buildId: string, body:
       stretch: si.stretch,
       noise_band: si.noiseBand,
       notes: body.notes ?? '',
+      formula,
       position: (max ?? -1) + 1,
       created_by: createdBy,
     }).returning('*')
@@ -185,6 +192,22 @@ export async function updateTarget(trx: Knex.Transaction, t: TargetRow, patch: z
   if (patch.noiseBand !== undefined) changes.noise_band = patch.noiseBand === null ? null : diffToSI(patch.noiseBand, unit)
   finiteOr400(Object.fromEntries(['threshold', 'threshold_high', 'stretch', 'noise_band']
     .filter(k => typeof changes[k] === 'number').map(k => [k, changes[k] as number])))
+  if (patch.formula !== undefined && patch.formula !== t.formula) {
+    if (patch.formula !== null) {
+      const held = await trx('readings').where({ target_id: t.id }).first('id')
+      if (held) {
+        throw createError({
+          statusCode: 409,
+          message: `formula: Target "${t.key}" has readings of its own; a derived target takes none. Add a new target for the formula, or delete these readings first`,
+          data: { fields: { formula: 'The target has readings' } },
+        })
+      }
+      changes.formula = await checkTargetFormula(trx, t.build_id, { key: t.key, unit: unit.unit }, patch.formula)
+    }
+    else {
+      changes.formula = null
+    }
+  }
   if (patch.archived === true && !t.archived_at) changes.archived_at = trx.fn.now()
   if (patch.archived === false && t.archived_at) {
     changes.archived_at = null

@@ -4,6 +4,7 @@
 import type { Hazard } from '../utils/caution'
 import type { StatsInUnit } from '../utils/cellStats'
 import type { Comparator, Movement, MovementResult, TargetStatus } from '../utils/conformance'
+import type { ForecastView } from '../utils/forecast'
 import type { Quantity } from '../utils/units'
 import type { Role } from '../utils/roles'
 
@@ -25,6 +26,28 @@ export interface TargetView {
   /** the number touches something that can hurt: show the usual caution */
   caution: boolean
   hazard: Hazard | null
+  /** evaluated from other targets' readings by `formula`; takes no readings of its own */
+  derived: boolean
+  formula: string | null
+}
+
+/** One input's part in a derived value on one revision (GUM eq. 10 term by term). */
+export interface BudgetTerm {
+  key: string
+  /** the input's mean and standard uncertainty, in its own display unit */
+  mean: number
+  u: number | null
+  unit: string
+  /** |∂f/∂x|·u(x), in the derived target's display unit */
+  contribution: number | null
+  /** this term's share of u_c² (0–1) */
+  share: number | null
+}
+
+/** A revision on which a derived target has inputs but no value, and why. */
+export interface CantEvaluate {
+  revision: string
+  reason: string
 }
 
 /** One revision's pooled statistics of one target, and what changed since the previous one. */
@@ -39,6 +62,8 @@ export interface HistoryEntry extends StatsInUnit {
   movement: Movement | null
   real: boolean | null
   reason: MovementResult['reason'] | null
+  /** derived targets only (n and readings are then 0: no samples of their own) */
+  budget?: BudgetTerm[]
 }
 
 export interface ScoreTarget extends TargetView {
@@ -47,6 +72,9 @@ export interface ScoreTarget extends TargetView {
   /** % from the threshold on the good side (conformance.marginOf), of the latest mean */
   margin: number | null
   history: HistoryEntry[]
+  /** derived targets: revisions with inputs but no value (empty for measured targets) */
+  cantEvaluate: CantEvaluate[]
+  forecast: ForecastView
 }
 
 export interface RevisionBrief {
@@ -104,6 +132,30 @@ export interface ReadingDetail {
   createdAt: string
 }
 
+/** A fix that landed in a revision (the findings board), as the target and revision pages list it. */
+export interface FixLanded {
+  id: string
+  description: string
+  revision: string
+  finding: { id: string, title: string, severity: string, lane: string }
+  /** keys of the targets the fix's finding hurts */
+  targets: string[]
+}
+
+/** A revision as "what moved this target" lists it: its movement, changes and fixes. */
+export interface Mover {
+  revision: string
+  parent: string | null
+  summary: string
+  changes: string[]
+  fixes: FixLanded[]
+  delta: number | null
+  p: number | null
+  movement: Movement | null
+  real: boolean | null
+  reason: MovementResult['reason'] | null
+}
+
 export interface TargetDetail {
   target: TargetView
   build: { id: string, slug: string, name: string }
@@ -112,7 +164,15 @@ export interface TargetDetail {
   latest: HistoryEntry | null
   margin: number | null
   history: HistoryEntry[]
+  cantEvaluate: CantEvaluate[]
   readings: ReadingDetail[]
+  /** every revision of the build, oldest first (the chart's axis) */
+  revisions: string[]
+  forecast: ForecastView
+  /** the revisions with a value, real movements first (by |delta|, then p) */
+  movers: Mover[]
+  /** a derived target's inputs */
+  inputs: { key: string, name: string, unit: string, derived: boolean }[]
 }
 
 export interface RevisionView extends RevisionBrief {
@@ -127,7 +187,47 @@ export interface RevisionView extends RevisionBrief {
 export interface RevisionDetail extends RevisionView {
   build: { id: string, slug: string, name: string }
   role: Role
-  targets: (TargetView & { stats: HistoryEntry | null, readings: ReadingDetail[] })[]
+  targets: (TargetView & { stats: HistoryEntry | null, cantEvaluate: string | null, readings: ReadingDetail[] })[]
+  /** what this revision moved against its parent; null without a parent */
+  moved: Comparison | null
+  fixesLanded: FixLanded[]
+}
+
+/** One side of a comparison: a revision's pooled cell (or derived value) of a target. */
+export interface CompareSide extends StatsInUnit {
+  readings: number
+  status: Exclude<TargetStatus, 'untested'>
+}
+
+export interface ComparedTarget {
+  target: TargetView
+  a: CompareSide | null
+  b: CompareSide | null
+  /** b − a; null when a side has no value */
+  delta: number | null
+  p: number | null
+  movement: Movement | null
+  real: boolean | null
+  reason: MovementResult['reason'] | null
+  /** why there is no comparison, e.g. "R3 has no reading of this target" */
+  note: string | null
+}
+
+export interface ParameterDiff {
+  name: string
+  a: { value: number | string, unit: string | null } | null
+  b: { value: number | string, unit: string | null } | null
+  differs: boolean
+}
+
+/** GET /api/builds/:build/compare?a=…&b=… (and a revision against its parent). */
+export interface Comparison {
+  build: { id: string, slug: string, name: string }
+  a: RevisionView
+  b: RevisionView
+  /** every active target, in strip order (a revision's `moved`: real movements first) */
+  targets: ComparedTarget[]
+  parameters: ParameterDiff[]
 }
 
 export interface BuildHealth {

@@ -108,7 +108,11 @@ export interface FindingDetail extends FindingCard {
 }
 
 /** GET /api/builds/:build/findings/open: per target key, the open findings that hurt it. */
-export type OpenFindingsByTarget = Record<string, { id: string, title: string, severity: Severity }[]>
+export interface OpenFindingsByTarget {
+  /** the caller may file findings on this build */
+  canFile: boolean
+  byTarget: Record<string, { id: string, title: string, severity: Severity }[]>
+}
 
 /** GET /api/me/fixes */
 export interface MyFix {

@@ -29,7 +29,8 @@ export class FormulaError extends Error {
 const FUNCTIONS = ['sqrt', 'abs', 'sin', 'cos', 'tan', 'exp', 'log', 'log10'] as const
 const CONSTANTS = ['pi'] as const
 const OPERATORS = new Set(['add', 'subtract', 'multiply', 'divide', 'pow', 'unaryMinus', 'unaryPlus'])
-const MAX_LENGTH = 500
+/** Longest formula accepted, after folding pasted signs (² → ^2 …). */
+export const FORMULA_MAX_LENGTH = 500
 
 type FunctionName = typeof FUNCTIONS[number]
 const isFunctionName = (name: string): name is FunctionName => (FUNCTIONS as readonly string[]).includes(name)
@@ -54,7 +55,7 @@ function normalizeFormula(formula: string): string {
 function parse(formula: string): Parsed {
   const text = normalizeFormula(String(formula ?? '')).trim()
   if (text === '') throw new FormulaError('syntax', 'The formula is empty')
-  if (text.length > MAX_LENGTH) throw new FormulaError('syntax', `The formula is longer than ${MAX_LENGTH} characters`)
+  if (text.length > FORMULA_MAX_LENGTH) throw new FormulaError('syntax', `The formula is longer than ${FORMULA_MAX_LENGTH} characters`)
   let node: MathNode
   try {
     node = math.parse(text)
@@ -144,14 +145,14 @@ function superscript(n: number): string {
   return n === 1 ? '' : String(n).replace(/\d/g, d => digits[Number(d)]!).replace('-', '⁻')
 }
 
-/** "power (W)", "energy or torque (J)", or base units such as "kg·m/s³" when nothing matches. */
+/** "power (W)", "torque (N·m) or energy (J)", or base units such as "kg·m/s³" when nothing matches. */
 function describe(dims: Dims): string {
   const names = QUANTITY_DIMS.filter(d => sameDims(d.dims, dims))
     // An angle is dimensionless here; name it only when nothing better fits.
     .filter((d, _, all) => d.quantity !== 'angle' || all.length === 1)
-  if (names.length > 0) {
-    return `${names.map(d => QUANTITY_LABELS[d.quantity]).join(' or ')} (${SI_UNIT[names[0]!.quantity]})`
-  }
+  if (names.length === 1) return `${QUANTITY_LABELS[names[0]!.quantity]} (${SI_UNIT[names[0]!.quantity]})`
+  // quantities that share a dimension (N·m and J, Hz and rad/s) each with its own unit
+  if (names.length > 1) return names.map(d => `${QUANTITY_LABELS[d.quantity]} (${SI_UNIT[d.quantity]})`).join(' or ')
   const part = (sign: 1 | -1) => BASE
     .map((b, i) => ({ sym: SYMBOL[b], exp: sign * dims[i]! }))
     .filter(p => p.sym && p.exp > 0)

@@ -149,3 +149,65 @@ function band(target: ForecastTarget): { low: number; high: number } {
   }
   return { low: threshold, high: thresholdHigh }
 }
+
+export interface ForecastView {
+  status: ForecastStatus
+  /** points the line went through */
+  n: number
+  /** change per revision, in the unit of the means */
+  slope: number | null
+  /** Revisions after the last point until the line meets the target (≥ 1), as forecast() gives it. */
+  crossesAfterLast: number | null
+  /**
+   * The revision at which the line meets the target: an existing label, or the label the next
+   * ones would get when labels end in a number (R5 → R7); otherwise "2 after R5".
+   */
+  crossesAt: string | null
+  /** The fitted line at build positions (0 = the build's first revision), extended ahead. */
+  line: { index: number, value: number }[]
+  /** what the forecast is worth, in words: "a straight line through 4 points" */
+  caveat: string
+}
+
+/** The label of the revision at build position `index`, guessing labels past the last one. */
+export function labelAt(revisions: readonly string[], index: number): string | null {
+  if (!Number.isInteger(index) || index < 0) return null
+  if (index < revisions.length) return revisions[index]!
+  const last = revisions.at(-1)
+  if (last === undefined) return null
+  const ahead = index - (revisions.length - 1)
+  const m = /^(.*?)(\d+)$/.exec(last)
+  if (!m) return `${ahead} after ${last}`
+  const next = String(Number(m[2]) + ahead)
+  return m[1] + (m[2]!.startsWith('0') ? next.padStart(m[2]!.length, '0') : next)
+}
+
+/**
+ * The forecast of a target from its history (one mean per revision that has one, any order),
+ * placed on the build's revisions (`revisions`: every label, oldest first).
+ */
+export function forecastOfHistory(
+  history: readonly { revision: string, mean: number }[],
+  revisions: readonly string[],
+  target: ForecastTarget,
+  opts: { window?: number } = {},
+): ForecastView {
+  const position = new Map(revisions.map((r, i) => [r, i]))
+  const points = history
+    .filter(h => position.has(h.revision))
+    .map(h => ({ index: position.get(h.revision)!, label: h.revision, mean: h.mean }))
+  const f = forecast(points, target, opts)
+  const lastIndex = f.n > 0 ? Math.max(...points.map(p => p.index)) : null
+  const at = f.crossesAfterLast !== null && lastIndex !== null ? labelAt(revisions, lastIndex + f.crossesAfterLast) : null
+  return {
+    status: f.status,
+    n: f.n,
+    slope: f.slope,
+    crossesAfterLast: f.crossesAfterLast,
+    crossesAt: at,
+    line: f.line,
+    caveat: f.status === 'not-enough-data'
+      ? `needs a mean on at least ${FORECAST_MIN_POINTS} revisions (${f.n === 1 ? 'has 1' : `has ${f.n}`})`
+      : `a straight line through ${f.n} points`,
+  }
+}

@@ -111,15 +111,17 @@ export function verificationOf(f: VerificationFacts): Verification {
   const after = f.seenOn?.seq ?? Number.NEGATIVE_INFINITY
   const from = landed?.seq ?? Number.NEGATIVE_INFINITY
   const candidates = f.revisions.filter(r => r.seq > after && r.seq >= from && Object.keys(r.cells).length > 0)
-  const where = [f.seenOn ? `after ${f.seenOn.label} (where it was seen)` : '', landed ? `from ${landed.label} on (where its fix landed)` : '']
-    .filter(Boolean).join(' and ')
-  const scope = where ? ` ${where}` : ''
+  const scope = () => {
+    const where = [f.seenOn ? `after ${f.seenOn.label} (where it was seen)` : '', landed ? `from ${landed.label} on (where its fix landed)` : '']
+      .filter(Boolean).join(' and ')
+    return where ? ` ${where}` : ''
+  }
   if (!candidates.length) {
-    return { revision: null, reason: `Closing needs a reading on a revision${scope}; there is none yet` }
+    return { revision: null, reason: `Closing needs a reading on a revision${scope()}; there is none yet` }
   }
   if (!f.targets.length) {
     const r = candidates[candidates.length - 1]!
-    return { revision: { seq: r.seq, label: r.label }, reason: `${r.label} has readings${scope}` }
+    return { revision: { seq: r.seq, label: r.label }, reason: `${r.label} has readings${scope()}` }
   }
   for (let i = candidates.length - 1; i >= 0; i--) {
     const r = candidates[i]!
@@ -131,7 +133,7 @@ export function verificationOf(f: VerificationFacts): Verification {
   const missing = f.targets.filter(t => latest.cells[t.id] !== 'met')
     .map(t => `${t.key} ${latest.cells[t.id] ? STATUS_WORD[latest.cells[t.id]!] : 'not measured'}`)
   const needs = f.targets.length === 1 ? `${f.targets[0]!.key} Met` : `each of ${f.targets.map(t => t.key).join(', ')} Met`
-  return { revision: null, reason: `Closing needs ${needs} on one revision${scope}; on ${latest.label}: ${missing.join(', ')}` }
+  return { revision: null, reason: `Closing needs ${needs} on one revision${scope()}; on ${latest.label}: ${missing.join(', ')}` }
 }
 
 export interface LaneFacts {

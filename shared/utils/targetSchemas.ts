@@ -24,6 +24,18 @@ export const numberField = (what: string) => z.number({ error: `${what} must be 
 export const comparatorField = z.enum(COMPARATORS, { error: 'The comparator is atLeast, atMost or between' })
 
 const notesField = storableText(z.string().trim().max(4000, 'Notes have at most 4,000 characters'))
+
+/**
+ * A derived target's formula over other targets' keys (shared/utils/derived.ts); empty or null
+ * for a measured target. The server checks its keys, dimension and cycles against the build.
+ * (The limit is derived.ts's FORMULA_MAX_LENGTH, not imported: that module brings mathjs.)
+ */
+const FORMULA_MAX_LENGTH = 500
+export const formulaField = storableText(z.string({ error: 'The formula is text, e.g. wheel_torque * wheel_speed' })
+  .trim()
+  .max(FORMULA_MAX_LENGTH, `A formula has at most ${FORMULA_MAX_LENGTH} characters`))
+  .nullable()
+  .transform(f => (f ? f : null))
 const targetNameField = storableText(nameField)
 
 export interface TargetRuleInput {
@@ -67,6 +79,7 @@ export const TargetBody = z.object({
   stretch: numberField('The stretch goal').nullable().optional(),
   noiseBand: numberField('The noise band').min(0, 'The noise band is 0 or more').nullable().optional(),
   notes: notesField.optional(),
+  formula: formulaField.optional(),
 }).superRefine(refineRule)
 
 /** Partial edit; the server checks the merged thresholds with targetRuleProblems. */
@@ -79,6 +92,7 @@ export const TargetPatch = z.object({
   stretch: numberField('The stretch goal').nullable().optional(),
   noiseBand: numberField('The noise band').min(0, 'The noise band is 0 or more').nullable().optional(),
   notes: notesField.optional(),
+  formula: formulaField.optional(),
   archived: z.boolean({ error: 'archived is true or false' }).optional(),
 })
 

@@ -191,12 +191,15 @@ describe('evidence files', () => {
       const controller = new AbortController()
       const next = byteSource('cut')
       let sent = 0
+      let release = () => {}
+      const stalled = new Promise<void>(r => (release = r))
       const boundary = 'cutcutcut'
       const body = new ReadableStream<Uint8Array>({
-        pull(c) {
+        async pull(c) {
           if (sent === 0) c.enqueue(new TextEncoder().encode(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="cut.bin"\r\n\r\n`))
           if (sent >= 8 * MB) {
-            controller.abort()
+            // the body stops flowing here until the test cuts the connection
+            await stalled
             return
           }
           const chunk = next(1 << 20)
@@ -204,13 +207,19 @@ describe('evidence files', () => {
           c.enqueue(new Uint8Array(chunk))
         },
       })
-      await fetch(`${BASE_URL}/api/v1/builds/${b()}/files`, {
+      const sending = fetch(`${BASE_URL}/api/v1/builds/${b()}/files`, {
         method: 'POST',
         headers: { 'content-type': `multipart/form-data; boundary=${boundary}`, 'cookie': w.engineer.client.cookie },
         body,
         duplex: 'half',
         signal: controller.signal,
       } as RequestInit).catch(() => null)
+      // the server is storing the bytes as they come …
+      expect(await waitFor(() => storedFiles().length === before.files + 1)).toBe(true)
+      controller.abort()
+      release()
+      await sending
+      // … and removes them when the client goes away
       expect(await waitFor(async () => JSON.stringify(await storedState(w.build.id)) === JSON.stringify(before))).toBe(true)
     })
 

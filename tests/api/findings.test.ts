@@ -182,7 +182,7 @@ describe('findings', () => {
       expect(detail.history[0]).toMatchObject({ kind: 'moved', detail: { from: 'spotted', to: 'closed', verifiedBy: 'R3' } })
       // open findings no longer count it
       const open = await w.reviewer.client.get(`/api/builds/${b.slug}/findings/open`)
-      expect(open.body).toEqual({})
+      expect(open.body).toEqual({ canFile: false, byTarget: {} })
     })
 
     it('a finding that hurts no target closes on any reading after the one it was seen on', async () => {
@@ -362,10 +362,13 @@ describe('findings', () => {
       const s = (await file(w.engineer.client, b.slug, { title: 'Lug heats', severity: 'safety', targets: ['unit_mass', 'peak_current'] })).body
       const p = (await file(w.engineer.client, b.slug, { title: 'Parked one', targets: ['unit_mass'] })).body
       await move(w.engineer.client, p.id, { lane: 'parked', version: 1 })
-      const open = await w.reviewer.client.get(`/api/builds/${b.slug}/findings/open`)
+      const open = await w.engineer.client.get(`/api/builds/${b.slug}/findings/open`)
       expect(open.body).toEqual({
-        unit_mass: [{ id: s.id, title: 'Lug heats', severity: 'safety' }, { id: a.id, title: 'Heavy carrier', severity: 'degrades' }],
-        peak_current: [{ id: s.id, title: 'Lug heats', severity: 'safety' }],
+        canFile: true,
+        byTarget: {
+          unit_mass: [{ id: s.id, title: 'Lug heats', severity: 'safety' }, { id: a.id, title: 'Heavy carrier', severity: 'degrades' }],
+          peak_current: [{ id: s.id, title: 'Lug heats', severity: 'safety' }],
+        },
       })
       const builds = await w.reviewer.client.get(`/api/teams/${w.team.slug}/builds`)
       expect(builds.body.find((x: any) => x.slug === b.slug).openFindings).toBe(2)

@@ -89,6 +89,14 @@ describe('the findings board in Chromium', () => {
     await expect(inLane(page, 'traced', ids.drag!).count()).resolves.toBe(1)
     await expect(inLane(page, 'spotted', ids.drag!).count()).resolves.toBe(0)
     await expect(page.locator('[data-testid="lane-count-traced"]').innerText()).resolves.toMatch(/^1\b/)
+
+    // filters: by severity, then by text; the counts say how many are hidden
+    await page.locator('[data-testid="filter-severity"]').selectOption('safety')
+    await expect(page.locator('[data-testid="lane-list-spotted"] [data-card-id]').count()).resolves.toBe(1)
+    await expect(page.locator('[data-testid="lane-count-spotted"]').innerText()).resolves.toMatch(/^1 of 3\b/)
+    await page.locator('[data-testid="filter-clear"]').click()
+    await page.locator('[data-testid="filter-text"]').fill('whine')
+    await expect(page.locator('[data-card-id]').evaluateAll(els => els.map(e => e.getAttribute('data-card-id')))).resolves.toEqual([ids.drag])
     await context.close()
   })
 
@@ -126,6 +134,39 @@ describe('the findings board in Chromium', () => {
     await page.waitForSelector('[data-testid="card-menu"]')
     await page.locator('[data-testid="card-to-parked"]').click()
     await page.waitForFunction(id => Boolean(document.querySelector(`[data-testid="lane-list-parked"] [data-card-id="${id}"]`)), ids.keys)
+
+    // someone else moves a card meanwhile: the stale move is refused, and the card shows where it is now and why
+    const other = await w.owner.client.post(`/api/v1/findings/${ids.xss}/move`, { lane: 'bench', version: 1 })
+    expect(other.status).toBe(200)
+    await card(page, ids.xss!).focus()
+    const stale = page.waitForResponse(r => r.url().includes(`/api/v1/findings/${ids.xss}/move`))
+    await page.keyboard.press('Alt+ArrowRight')
+    expect((await stale).status()).toBe(409)
+    await page.waitForSelector(`[data-testid="lane-list-bench"] [data-testid="finding-card-${ids.xss}"] [data-testid="card-refusal"]`)
+    await expect(card(page, ids.xss!).locator('[data-testid="card-refusal"]').innerText()).resolves.toMatch(/changed since you loaded it .* Olu Owner moved it to On the bench/)
+    await context.close()
+  })
+
+  it('files a finding from a target card, with the target and caution filled in', async () => {
+    const context = await newContext(browser)
+    await signIn(context, w.engineer)
+    const page = await context.newPage()
+    await goto(page, `/builds/${w.build.slug}`)
+    // the card lists the open finding that hurts it
+    await expect(page.locator('[data-testid="target-findings-peak_current"]').innerText()).resolves.toContain('Battery lug heats at 30 A')
+    await page.locator('[data-testid="file-finding-peak_current"]').click()
+    await page.waitForSelector('[data-testid="finding-form"]')
+    expect(await page.locator('[data-testid="finding-target-peak_current"]').isChecked()).toBe(true)
+    await page.locator('[data-testid="finding-title"]').fill('Pack fuse holder warm')
+    await page.locator('[data-testid="finding-severity-safety"]').check()
+    await expect(page.locator('[data-testid="finding-form"] [data-testid="caution"]').innerText()).resolves.toContain('local codes and licensed practice')
+    const created = page.waitForResponse(r => r.url().endsWith(`/api/v1/builds/${w.build.slug}/findings`) && r.request().method() === 'POST')
+    await page.locator('[data-testid="finding-save"]').click()
+    const res = await created
+    expect(res.status()).toBe(201)
+    const id = (await res.json()).id as string
+    await page.waitForSelector(`[data-testid="lane-list-spotted"] [data-testid="finding-card-${id}"]`)
+    await expect(card(page, id).innerText()).resolves.toContain('peak_current')
     await context.close()
   })
 
@@ -163,6 +204,38 @@ describe('the findings board in Chromium', () => {
     await screenshot(page, 'finding-detail-dark')
     expect(await page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned)).toBeUndefined()
     expect(dialogs).toEqual([])
+    await context.close()
+  })
+
+  it('works a finding on its page: a fix, a comment with a mention, the history', async () => {
+    const context = await newContext(browser)
+    await signIn(context, w.engineer)
+    const page = await context.newPage()
+    await goto(page, `/builds/${w.build.slug}/findings/${ids.drag}`)
+    await page.locator('[data-testid="fix-add"]').click()
+    await page.locator('[data-testid="fix-description"]').fill('Shielded motor cable, ferrite at the controller')
+    await page.locator('[data-testid="fix-owner"]').selectOption({ label: 'Eno Engineer' })
+    await page.locator('[data-testid="fix-due"]').fill('2027-02-01')
+    await page.locator('[data-testid="fix-state"]').selectOption('landed')
+    await expect(page.locator('[data-testid="fix-landed"]').inputValue()).resolves.toBe('R1')
+    await page.locator('[data-testid="fix-save"]').click()
+    await page.waitForSelector('[data-testid="fix-state-word"]')
+    await expect(page.locator('[data-testid="fix-list"]').innerText()).resolves.toMatch(/Shielded motor cable[\s\S]*Eno Engineer · due 2027-02-01 · landed in R1[\s\S]*Landed/)
+
+    await page.locator('[data-testid="comment-input"]').fill('Landed in R1, @Rae please look at the **scope capture**')
+    await page.locator('[data-testid="comment-save"]').click()
+    await page.waitForSelector('[data-testid="comment-mentions"]')
+    await expect(page.locator('[data-testid="comment-body"] strong').innerText()).resolves.toBe('scope capture')
+    await expect(page.locator('[data-testid="comment-mentions"]').innerText()).resolves.toBe('Mentions: Rae Reviewer')
+
+    // moving to Retest is allowed now that a fix has landed; the history says who did what
+    await page.locator('[data-testid="finding-move-to"]').selectOption('retest')
+    await page.locator('[data-testid="finding-move"]').click()
+    await page.waitForFunction(() => document.querySelector('[data-testid="finding-lane"]')?.textContent?.includes('Retest'))
+    const history = await page.locator('[data-testid="history"]').innerText()
+    expect(history).toMatch(/Eno Engineer moved it from Traced to Retest/)
+    expect(history).toMatch(/Eno Engineer added the fix “Shielded motor cable, ferrite at the controller” for Eno Engineer, landed in R1/)
+    await screenshot(page, 'finding-detail-light')
     await context.close()
   })
 

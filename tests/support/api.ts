@@ -9,10 +9,12 @@ export interface ApiResponse<T = any> {
 }
 
 let ipCounter = 0
+// a random prefix per test process (a private IPv6 range), so test files never share an address
+const IP_PREFIX = `fd00::${randomBytes(2).toString('hex')}:${randomBytes(2).toString('hex')}`
 /** A distinct client address per client, so the sign-in throttle of one test can't touch another. */
 function nextIp(): string {
   ipCounter++
-  return `10.${(process.pid >> 8) & 255}.${(ipCounter >> 8) & 255}.${ipCounter & 255}`
+  return `${IP_PREFIX}:${ipCounter.toString(16)}`
 }
 
 /** An HTTP client with its own cookie jar, optional bearer token and client address. */

@@ -17,6 +17,8 @@ export interface TargetInput {
   stretch?: number | null
   noiseBand?: number | null
   notes?: string
+  /** a derived target's formula */
+  formula?: string | null
 }
 
 export async function newTarget(c: Client, build: string, overrides: TargetInput = {}) {

@@ -196,6 +196,17 @@ export const routes: RouteCase[] = [
   { method: 'POST', path: '/api/v1/builds/:build/readings', expect: e(401, 404, 404, 403, 201, 201), prepare: async (w) => { const { key, label } = await measuredBuild(w); return { body: { revision: label, target: key, values: [11, 12, 13], unit: 'N' } } } },
   { method: 'GET', path: '/api/v1/builds/:build/scoreboard', expect: e(401, 404, 404, 200, 200, 200) },
 
+  // history, comparison and derived targets (issue 5)
+  {
+    method: 'GET',
+    path: '/api/builds/:build/compare',
+    expect: e(401, 401, 404, 200, 200, 200),
+    prepare: async (w) => {
+      const { label } = await measuredBuild(w)
+      return { params: base(w), query: `a=${label}&b=${await freshRevision(w)}` }
+    },
+  },
+
   // digests (issue 8)
   { method: 'PUT', path: '/api/v1/builds/:build/subscription', expect: e(401, 403, 404, 200, 200, 200), prepare: w => ({ params: base(w), body: { frequency: 'daily' } }) },
   { method: 'GET', path: '/api/v1/builds/:build/events', expect: e(401, 404, 404, 200, 200, 200) },

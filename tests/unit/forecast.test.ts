@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { forecast, linearFit } from '../../shared/utils/forecast'
+import { forecast, forecastOfHistory, labelAt, linearFit } from '../../shared/utils/forecast'
 import { norrisCertified, norrisData } from '../fixtures/strd-norris'
 
 /** Agreement to `digits` significant digits (log relative error, as the StRD reports use). */
@@ -127,5 +127,38 @@ describe('forecast', () => {
 
   it('refuses a between target without an upper threshold', () => {
     expect(() => forecast(revisions([1, 2, 3]), { comparator: 'between', threshold: 5 })).toThrow(RangeError)
+  })
+})
+
+describe('forecastOfHistory', () => {
+  const revs = ['R1', 'R2', 'R3', 'R4', 'R5']
+
+  it('places the means on the build\'s revisions and names the revision where the line meets the threshold', () => {
+    // Means 30, 32, 34 on R2–R4 (positions 1–3): y = 28 + 2x reaches 40 at x = 6, three after R4;
+    // position 6 is past R5, so its label is guessed from R5: R7. Exact line, worked by hand.
+    const f = forecastOfHistory([{ revision: 'R2', mean: 30 }, { revision: 'R3', mean: 32 }, { revision: 'R4', mean: 34 }], revs, { comparator: 'atLeast', threshold: 40 })
+    expect(f).toMatchObject({ status: 'converging', n: 3, crossesAfterLast: 3, crossesAt: 'R7', caveat: 'a straight line through 3 points' })
+    expect(f.slope).toBeCloseTo(2, 12)
+    expect(f.line[0]).toEqual({ index: 1, value: 30 })
+  })
+
+  it('an existing revision when the line meets the threshold before the build\'s last one', () => {
+    // y = 28 + 2x on R1–R3 (0, 1, 2) reaches 34 at x = 3: R4, which exists but has no reading yet
+    const f = forecastOfHistory([{ revision: 'R1', mean: 28 }, { revision: 'R2', mean: 30 }, { revision: 'R3', mean: 32 }], revs, { comparator: 'atLeast', threshold: 34 })
+    expect(f.crossesAt).toBe('R4')
+  })
+
+  it('says what it lacks with fewer than 3 means', () => {
+    const f = forecastOfHistory([{ revision: 'R1', mean: 1 }, { revision: 'R2', mean: 2 }], revs, { comparator: 'atLeast', threshold: 5 })
+    expect(f).toMatchObject({ status: 'not-enough-data', crossesAt: null, caveat: 'needs a mean on at least 3 revisions (has 2)' })
+  })
+
+  it.each([
+    [['R1', 'R2'], 4, 'R5'],
+    [['A-09'], 2, 'A-11'],
+    [['proto'], 1, '1 after proto'],
+    [['R1'], 0, 'R1'],
+  ])('labelAt(%j, %i) = %s', (labels, index, expected) => {
+    expect(labelAt(labels, index)).toBe(expected)
   })
 })

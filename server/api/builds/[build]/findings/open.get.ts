@@ -1,6 +1,6 @@
 import type { OpenFindingsByTarget } from '#shared/types/findings'
 
 export default defineEventHandler(async (event): Promise<OpenFindingsByTarget> => {
-  const { build } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
-  return await openFindingsByTarget(useDb(), build.id)
+  const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
+  return { canFile: role !== 'reviewer', byTarget: await openFindingsByTarget(useDb(), build.id) }
 })

@@ -3,11 +3,11 @@ export default defineEventHandler(async (event) => {
   const body = await bodyAs(event, MoveBody)
   const actor = findingActor(access)
   return await useDb().transaction(async (trx) => {
+    // the board's lock orders moves in a build; the finding's version guards the row itself
     await lockBoard(trx, access.build.id)
-    const finding = await lockFinding(trx, access.findingId)
-    const moved = await moveFinding(trx, finding, body, actor)
+    const moved = await moveFinding(trx, access.finding, body, actor)
     if (moved.override) {
-      await audit(event, { action: 'finding.override', teamId: access.build.team_id, actorId: actor.userId, actorLabel: access.actorLabel, detail: { finding: finding.id, from: finding.lane, to: body.lane, reason: body.override!.reason } }, trx)
+      await audit(event, { action: 'finding.override', teamId: access.build.team_id, actorId: actor.userId, actorLabel: access.actorLabel, detail: { finding: access.findingId, from: access.finding.lane, to: body.lane, reason: body.override!.reason } }, trx)
     }
     return moved
   })
