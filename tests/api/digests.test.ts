@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Client, closeTestDb, makeWorld, testDb, type World } from '../support/api'
 import { linkIn, mailTo, rawHeader, waitForMail } from '../support/maildev'
-import { startApp, startMaildev, stopApp, stopMaildev } from '../support/services'
+import { startApp, startMaildev, startSecondApp, stopApp, stopMaildev } from '../support/services'
 
 afterAll(closeTestDb)
 
@@ -168,5 +168,29 @@ describe('delivery survives outages', () => {
     const mails = await mailTo(w.reviewer.email)
     expect(mails.filter(m => /Slipped/.test(m.subject))).toHaveLength(1)
     expect(mails.filter(m => /Met:/.test(m.subject))).toHaveLength(1)
+  })
+
+  it('with two app servers working the queue, each e-mail still goes out once', async () => {
+    const stopSecond = await startSecondApp(Number(process.env.RATCHET_TEST_APP_PORT) + 50)
+    try {
+      const w = await makeWorld()
+      await w.reviewer.client.put(`/api/v1/builds/${w.build.slug}/subscription`, { frequency: 'immediate' })
+      await w.engineer.client.put(`/api/v1/builds/${w.build.slug}/subscription`, { frequency: 'immediate' })
+      const keys = [] as string[]
+      for (let i = 0; i < 3; i++) {
+        const { key } = await shortTarget(w)
+        await meet(w, key)
+        keys.push(key)
+      }
+      for (const key of keys) await waitForMail(w.engineer.email, new RegExp(key), 30_000)
+      await settle(4000)
+      for (const who of [w.reviewer.email, w.engineer.email]) {
+        const mails = await mailTo(who)
+        for (const key of keys) expect(mails.filter(m => m.subject.includes(key)), `${who} ${key}`).toHaveLength(1)
+      }
+    }
+    finally {
+      await stopSecond()
+    }
   })
 })

@@ -66,6 +66,13 @@ export async function startApp() {
   await until(async () => (await fetch(`${BASE_URL}/api/health`)).ok, 'the app to answer')
 }
 
+/** A second app server on another port, sharing the database and the queue. */
+export async function startSecondApp(port: number): Promise<() => Promise<void>> {
+  const pid = launch(process.execPath, [`${ROOT}.output/server/index.mjs`], { ...process.env, HOST: '127.0.0.1', PORT: String(port) })
+  await until(async () => (await fetch(`http://127.0.0.1:${port}/api/health`)).ok, 'the second app to answer')
+  return () => stop(pid, 'the second app')
+}
+
 export function pidsStarted(): number[] {
   return readFileSync(process.env.RATCHET_TEST_PIDFILE!, 'utf8').split('\n').filter(Boolean).map(Number)
 }
