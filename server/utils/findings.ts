@@ -7,9 +7,9 @@ import { hazardOf } from '../../shared/utils/caution'
 import type { FindingCreate, FindingListQuery, FindingPatch, MoveBody } from '../../shared/utils/findingSchemas'
 import { LANES, LANE_LABELS, OPEN_LANES, OVERRIDABLE, laneRefusal, verificationOf, type CellStatus, type Lane, type Severity, type Verification, type VerificationFacts } from '../../shared/utils/lanes'
 import { RANK_SOFT_LIMIT, rankBetween, spreadRanks } from '../../shared/utils/rank'
-import type { Role } from '../../shared/utils/roles'
+import { roleAtLeast, type Role } from '../../shared/utils/roles'
 import type { Quantity } from '../../shared/utils/units'
-import type { BuildAccess } from './auth'
+import type { BuildAccess, BuildRow } from './auth'
 import { recordEvent } from './events'
 
 // Findings and the board: listing, creating, editing and moving them under the lane rules.
@@ -59,18 +59,32 @@ export interface FindingAccess extends BuildAccess {
 
 /**
  * The caller's access to a finding's build. Signed-out callers get a 401 before anything is looked
- * up; a finding outside the caller's teams is a 404.
+ * up; a finding outside the caller's teams is a 404; a role too low a 403 (requireBuildRole's).
  */
 export async function requireFindingRole(event: H3Event, min: Role, opts: { allowRigToken?: boolean } = {}): Promise<FindingAccess> {
   const id = uuidParam(event, 'id')
-  // the session check and the lookup side by side: a 401 still wins over a 404
-  const [, finding] = await Promise.all([
-    opts.allowRigToken && bearerToken(event) ? null : requireUser(event),
-    useDb()('findings').where({ id }).first() as Promise<FindingRow | undefined>,
+  const db = useDb()
+  if (opts.allowRigToken && bearerToken(event)) {
+    const finding = await db('findings').where({ id }).first() as FindingRow | undefined
+    if (!finding) throw createError({ statusCode: 404, message: 'Finding not found' })
+    return { ...await requireBuildRole(event, finding.build_id, min, opts), findingId: id, finding }
+  }
+  // the session's check, and the finding with its build and the caller's role there, side by side
+  const session = await getUserSession(event)
+  const [user, row] = await Promise.all([
+    requireUser(event),
+    session.user
+      ? db('findings as f').join('builds as b', 'b.id', 'f.build_id')
+          .leftJoin('memberships as m', q => q.on('m.team_id', 'b.team_id').andOnVal('m.user_id', session.user!.id))
+          .where('f.id', id)
+          .first('f.*', db.raw('to_jsonb(b) AS build'), 'm.role AS member_role') as Promise<(FindingRow & { build: BuildRow, member_role: Role | null }) | undefined>
+      : null,
   ])
-  if (!finding) throw createError({ statusCode: 404, message: 'Finding not found' })
-  const access = await requireBuildRole(event, finding.build_id, min, opts)
-  return { ...access, findingId: id, finding }
+  if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
+  const { build, member_role: role, ...finding } = row
+  // outside the team or below the role: the usual 404 or 403, worded by requireBuildRole
+  if (!roleAtLeast(role, min)) return { ...await requireBuildRole(event, build.id, min), findingId: id, finding }
+  return { build, role: role!, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, findingId: id, finding }
 }
 
 /** Serialises writes to one build's board until the transaction ends. */
@@ -233,15 +247,22 @@ export async function findingSummary(db: Db, id: string): Promise<FindingSummary
 const NOW = Symbol('now')
 
 /**
- * Writes `sets` to the finding only if it is still at `version` (raising the version), and
- * returns its summary; null when someone else wrote first. One statement.
+ * Writes `sets` to the finding only if it is still at `version` (raising the version), records
+ * `event` in its history when given, and returns its summary; null when someone else wrote
+ * first. One statement.
  */
-async function writeIfCurrent(trx: Knex.Transaction, id: string, version: number, sets: Record<string, unknown>): Promise<FindingSummary | null> {
+async function writeIfCurrent(trx: Knex.Transaction, id: string, version: number, sets: Record<string, unknown>, event?: { kind: 'moved', actor: FindingActor, detail: Record<string, unknown> }): Promise<FindingSummary | null> {
   const columns = Object.keys(sets)
   const assign = columns.map(c => (sets[c] === NOW ? `${c} = now()` : `${c} = ?`))
   const values = columns.filter(c => sets[c] !== NOW).map(c => sets[c])
-  const { rows } = await trx.raw(`UPDATE findings AS f SET ${[...assign, 'version = f.version + 1', 'updated_at = now()'].join(', ')}
-    WHERE f.id = ? AND f.version = ? RETURNING ${SUMMARY_COLUMNS}`, [...values, id, version] as Knex.RawBinding[]) as { rows: SummaryRow[] }
+  const history = event
+    ? `, e AS (INSERT INTO finding_events (finding_id, kind, actor_id, actor_label, detail) SELECT f.id, ?, ?, ?, ?::jsonb FROM f)`
+    : ''
+  const { rows } = await trx.raw(`
+    WITH f AS (UPDATE findings AS u SET ${[...assign, 'version = u.version + 1', 'updated_at = now()'].join(', ')}
+      WHERE u.id = ? AND u.version = ? RETURNING u.*)${history}
+    SELECT ${SUMMARY_COLUMNS} FROM f`,
+  [...values, id, version, ...(event ? [event.kind, event.actor.userId, event.actor.label.slice(0, 254), JSON.stringify(event.detail)] : [])] as Knex.RawBinding[]) as { rows: SummaryRow[] }
   return rows[0] ? summaryOfRow(rows[0]) : null
 }
 
@@ -435,35 +456,39 @@ export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes:
   return { landedFixes: facts.landedIn.length, verification: verificationOf(facts) }
 }
 
-/** How many of a finding's fixes landed in a revision (all the Retest rule needs). */
-async function landedFixesOf(db: Db, findingId: string): Promise<number> {
-  const row = await db('fixes').where({ finding_id: findingId, state: 'landed' }).whereNotNull('landed_revision_id').count('* as n').first()
-  return Number(row?.n ?? 0)
-}
-
 interface Neighbour { id: string, lane: Lane, rank: string, title: string, prev_rank: string | null, next_rank: string | null }
 
 function boardChanged(message: string) {
   return createError({ statusCode: 409, message: `The board changed since you loaded it: ${message}. Reload the board and try again.` })
 }
 
-/** The ranks the moved card goes between, from the neighbours the caller named (one query). */
-async function slotOf(trx: Knex.Transaction, f: FindingRow, lane: Lane, before?: string, after?: string): Promise<[string | null, string | null]> {
+interface Place {
+  /** the ranks the moved card goes between (null: the start or the end of the lane) */
+  prev: string | null
+  next: string | null
+  /** fixes of the moved card that landed in a revision (what the Retest rule needs) */
+  landedFixes: number
+}
+
+/** Where the moved card goes, from the neighbours the caller named, and its landed fixes: one query. */
+async function placeOf(trx: Knex.Transaction, f: FindingRow, lane: Lane, before?: string, after?: string): Promise<Place> {
   const ids = [before, after].filter((x): x is string => Boolean(x))
   if (ids.includes(f.id)) throw createError({ statusCode: 400, message: 'A card can’t be placed next to itself', data: { fields: { [before === f.id ? 'before' : 'after']: 'The moved card itself' } } })
-  if (!ids.length) {
-    const last = await trx('findings').where({ build_id: f.build_id, lane }).whereNot('id', f.id).orderBy('rank', 'desc').first('rank')
-    return [last?.rank ?? null, null]
-  }
-  // each neighbour with the ranks around it in its lane, leaving the moved card out
+  // each named neighbour with the ranks around it in its lane, leaving the moved card out
   const { rows } = await trx.raw(`
-    SELECT n.id, n.lane, n.rank, n.title,
-      (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank < n.rank AND p.id <> ? ORDER BY p.rank DESC LIMIT 1) AS prev_rank,
-      (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank > n.rank AND p.id <> ? ORDER BY p.rank ASC LIMIT 1) AS next_rank
-    FROM findings n WHERE n.build_id = ? AND n.id = ANY(CAST(? AS uuid[]))`, [f.id, f.id, f.build_id, ids]) as { rows: Neighbour[] }
+    SELECT
+      (SELECT max(p.rank) FROM findings p WHERE p.build_id = ? AND p.lane = ? AND p.id <> ?) AS last_rank,
+      (SELECT count(*) FROM fixes x WHERE x.finding_id = ? AND x.state = 'landed' AND x.landed_revision_id IS NOT NULL) AS landed,
+      (SELECT coalesce(json_agg(json_build_object('id', n.id, 'lane', n.lane, 'rank', n.rank, 'title', n.title,
+        'prev_rank', (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank < n.rank AND p.id <> ? ORDER BY p.rank DESC LIMIT 1),
+        'next_rank', (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank > n.rank AND p.id <> ? ORDER BY p.rank ASC LIMIT 1))), '[]')
+        FROM findings n WHERE n.build_id = ? AND n.id = ANY(CAST(? AS uuid[]))) AS neighbours`,
+  [f.build_id, lane, f.id, f.id, f.id, f.id, f.build_id, ids]) as { rows: { last_rank: string | null, landed: number, neighbours: Neighbour[] }[] }
+  const { last_rank: lastRank, neighbours } = rows[0]!
+  const landedFixes = Number(rows[0]!.landed)
   const find = (id: string | undefined, field: string) => {
     if (!id) return null
-    const row = rows.find(r => r.id === id)
+    const row = neighbours.find(r => r.id === id)
     if (!row) throw createError({ statusCode: 404, message: `${field}: No such finding on this board`, data: { fields: { [field]: 'Not on this board' } } })
     if (row.lane !== lane) throw boardChanged(`“${row.title}” is in ${LANE_LABELS[row.lane]}, not ${LANE_LABELS[lane]}`)
     return row
@@ -472,10 +497,11 @@ async function slotOf(trx: Knex.Transaction, f: FindingRow, lane: Lane, before?:
   const above = find(after, 'after')
   if (above && below) {
     if (!(above.rank < below.rank)) throw boardChanged(`“${above.title}” is no longer above “${below.title}”`)
-    return [above.rank, below.rank]
+    return { prev: above.rank, next: below.rank, landedFixes }
   }
-  if (below) return [below.prev_rank, below.rank]
-  return [above!.rank, above!.next_rank]
+  if (below) return { prev: below.prev_rank, next: below.rank, landedFixes }
+  if (above) return { prev: above.rank, next: above.next_rank, landedFixes }
+  return { prev: lastRank, next: null, landedFixes }
 }
 
 /** Gives the lane fresh, short ranks with the moved card between `prev` and `next`; returns its rank. */
@@ -513,10 +539,9 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
   const changesLane = lane !== f.lane
   let override: { reason: string, rule: string } | null = null
   let verifiedBy: { seq: number, label: string } | null = null
+  const { prev, next, landedFixes } = await placeOf(trx, f, lane, body.before, body.after)
   if (changesLane && (lane === 'retest' || lane === 'closed')) {
-    const facts = lane === 'retest'
-      ? { landedFixes: await landedFixesOf(trx, f.id), verification: { revision: null, reason: '' } }
-      : await laneFactsOf(trx, f)
+    const facts = lane === 'retest' ? { landedFixes, verification: { revision: null, reason: '' } } : await laneFactsOf(trx, f)
     const refusal = laneRefusal(lane, facts)
     if (refusal) {
       if (!body.override || !OVERRIDABLE.includes(lane)) {
@@ -529,7 +554,6 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
     }
   }
 
-  const [prev, next] = await slotOf(trx, f, lane, body.before, body.after)
   let rank: string
   let respread = false
   if (!changesLane && (prev === null || prev < f.rank) && (next === null || f.rank < next)) rank = f.rank
@@ -551,16 +575,11 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
   else if (changesLane && f.lane === 'closed') {
     Object.assign(closing, { closed_at: null, verified_revision_id: null, override_reason: null, override_by: null })
   }
-  const finding = await writeIfCurrent(trx, f.id, body.version, { lane, rank, ...closing })
+  const moved = changesLane
+    ? { kind: 'moved' as const, actor, detail: { from: f.lane, to: lane, ...(verifiedBy ? { verifiedBy: verifiedBy.label } : {}), ...(override ? { override } : {}) } }
+    : undefined
+  const finding = await writeIfCurrent(trx, f.id, body.version, { lane, rank, ...closing }, moved)
   if (!finding) throw await staleWrite(trx, f.id, body.version)
-  if (changesLane) {
-    await recordFindingEvent(trx, f.id, 'moved', actor, {
-      from: f.lane,
-      to: lane,
-      ...(verifiedBy ? { verifiedBy: verifiedBy.label } : {}),
-      ...(override ? { override } : {}),
-    })
-  }
   return { finding, respread, override: Boolean(override) }
 }
 
