@@ -77,9 +77,10 @@ async function http(ctx: Pick<Context, 'cookie'> | null, method: string, path: s
 function serverTiming(res: Response) {
   const header = res.headers.get('server-timing') ?? ''
   const app = /app;dur=([\d.]+)/.exec(header)
+  const db = /db;dur=([\d.]+)/.exec(header)
   const queries = /queries=(\d+)/.exec(header)
-  if (!app || !queries) throw new Error(`no Server-Timing on the answer: "${header}"`)
-  return { app: Number(app[1]), queries: Number(queries[1]) }
+  if (!app || !db || !queries) throw new Error(`no Server-Timing on the answer: "${header}"`)
+  return { app: Number(app[1]), db: Number(db[1]), queries: Number(queries[1]) }
 }
 
 async function signIn(db: Knex): Promise<Context> {
@@ -272,6 +273,11 @@ async function seedBoard(ctx: Context, n: number) {
     if (t.res.status !== 201) throw new Error(`target: ${t.res.status} ${t.text}`)
   }
   for (let r = 1; r <= 6; r++) await http(ctx, 'POST', `/api/v1/builds/${build.slug}/revisions`, { label: `R${r}` })
+  // every target Met on R6, so a card whose fix landed in R5 can close, verified
+  for (const [i, unit] of ['N', 'A', '°C', 'kg', 'km/h'].entries()) {
+    const r = await http(ctx, 'POST', `/api/v1/builds/${build.slug}/readings`, { revision: 'R6', target: `t${i}`, values: [50, 51, 49, 50.5], unit })
+    if (r.res.status !== 201) throw new Error(`reading: ${r.res.status} ${r.text}`)
+  }
   const targets = await db('targets').where({ build_id: build.id }).pluck('id') as string[]
   const revisions = await db('revisions').where({ build_id: build.id }).orderBy('seq').pluck('id') as string[]
   const rnd = random(n)
@@ -310,14 +316,12 @@ async function seedBoard(ctx: Context, n: number) {
 /** The rows of the board, by the same statements the board request runs, side by side, from this process. */
 async function rawBoard(db: Knex, buildId: string, teamId: string) {
   const [findings] = await Promise.all([
-    db.raw(`SELECT f.id, f.title, f.lane, f.severity, f.rank, f.version,
-        to_char(f.created_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') AS created_at, to_char(f.updated_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') AS updated_at,
-        s.label AS seen_label, s.seq AS seen_seq, f.description
+    db.raw(`SELECT f.id, f.title, f.lane, f.severity, f.rank, f.version, s.label AS seen_label, s.seq AS seen_seq, f.description
       FROM findings f LEFT JOIN revisions s ON s.id = f.seen_on_revision_id WHERE f.build_id = ?
       ORDER BY array_position(ARRAY['spotted','traced','bench','retest','closed','parked']::text[], f.lane::text), (f.severity <> 'safety'), f.rank`, [buildId]),
     db.raw(`SELECT ft.finding_id, t.id, t.key FROM finding_targets ft JOIN findings f ON f.id = ft.finding_id JOIN targets t ON t.id = ft.target_id
       WHERE f.build_id = ? ORDER BY t.position, t.key`, [buildId]),
-    db.raw(`SELECT x.id, x.finding_id, x.description, x.state, x.owner_id, u.name AS owner_name, to_char(x.due_on, 'YYYY-MM-DD') AS due_on, lr.label AS landed_label, lr.seq AS landed_seq
+    db.raw(`SELECT x.finding_id, x.state, x.owner_id, u.name AS owner_name, to_char(x.due_on, 'YYYY-MM-DD') AS due_on, lr.label AS landed_label, lr.seq AS landed_seq
       FROM fixes x JOIN findings f ON f.id = x.finding_id LEFT JOIN users u ON u.id = x.owner_id LEFT JOIN revisions lr ON lr.id = x.landed_revision_id
       WHERE f.build_id = ? ORDER BY x.created_at, x.id`, [buildId]),
     db.raw(`SELECT c.finding_id, count(*)::int AS n FROM finding_comments c JOIN findings f ON f.id = c.finding_id WHERE f.build_id = ? GROUP BY c.finding_id`, [buildId]),
@@ -371,6 +375,8 @@ const boardSection: Section = {
     const free: Lane[] = ['spotted', 'traced', 'bench', 'parked']
     const moveTimes: number[] = []
     const retestTimes: number[] = []
+    const moveDb: number[] = []
+
     const queries = new Set<number>()
     for (let i = 0; i < BOARD_MOVES; i++) {
       const toRetest = i % 5 === 4
@@ -386,13 +392,28 @@ const boardSection: Section = {
       const timing = serverTiming(res)
       if (toRetest) retestTimes.push(timing.app)
       else moveTimes.push(timing.app)
+      moveDb.push(timing.db)
       queries.add(timing.queries)
       const moved = JSON.parse(text).finding as { lane: Lane, version: number }
       card.lane = moved.lane
       card.version = moved.version
     }
+    // into Closed: verified by R6's readings (the rule reads the revisions' statuses), and with an
+    // Owner's override (under the board's lock, with its audit row)
+    const closeTimes: number[] = []
+    const overrideTimes: number[] = []
+    const open = cards.filter(c => c.lane !== 'closed' && c.fixes.some(f => f.state === 'landed'))
+    for (const [k, card] of open.slice(0, BOARD_MOVES / 5).entries()) {
+      const overriding = k % 2 === 1
+      const { res, text } = await http(ctx, 'POST', `/api/v1/findings/${card.id}/move`, { lane: 'closed', version: card.version, ...(overriding ? { override: { reason: 'Bench: closed by the Owner' } } : {}) })
+      if (res.status !== 200) throw new Error(`close: ${res.status} ${text.slice(0, 200)}`)
+      ;(overriding ? overrideTimes : closeTimes).push(serverTiming(res).app)
+    }
+    const overrideClose = summary(overrideTimes)
+    const close = summary(closeTimes)
     const move = summary(moveTimes)
     const retest = summary(retestTimes)
+    const db = summary(moveDb)
     const ratio = board.app.median / rawSummary.median
 
     console.log()
@@ -402,8 +423,12 @@ const boardSection: Section = {
     console.log(`  raw SQL of the board's rows           ${ms(rawSummary.median)} / ${ms(rawSummary.p95)}`)
     console.log(`  move between free lanes (${moveTimes.length})        ${ms(move.median)} / ${ms(move.p95)}`)
     console.log(`  move into Retest, rule read (${retestTimes.length})     ${ms(retest.median)} / ${ms(retest.p95)}   SQL queries per move: ${[...queries].sort((a, b) => a - b).join(', ')}`)
+    console.log(`  into Closed, verified (${closeTimes.length})          ${ms(close.median)} / ${ms(close.p95)}`)
+    console.log(`  into Closed, Owner override (${overrideTimes.length})    ${ms(overrideClose.median)} / ${ms(overrideClose.p95)}   (board lock and audit row)`)
+    console.log(`  of a move, waiting on SQL (all ${moveDb.length})      ${ms(db.median)} / ${ms(db.p95)}`)
     console.log()
-    console.log(`  goal: a move ≤ 10 ms p95 server time (measured ${ms(Math.max(move.p95, retest.p95))}: ${Math.max(move.p95, retest.p95) <= 10 ? 'met' : 'NOT met'}); `
+    const worst = Math.max(move.p95, retest.p95, close.p95, overrideClose.p95)
+    console.log(`  goal: a move ≤ 10 ms p95 server time (slowest kind measured ${ms(worst)}: ${worst <= 10 ? 'met' : 'NOT met'}); `
       + `board ≤ 2 × raw SQL (measured ${ratio.toFixed(2)}: ${ratio <= 2 ? 'met' : 'NOT met'})`)
     console.log('  server = Server-Timing app;dur; raw SQL = the board request\'s own statements run side by side from this process')
   },

@@ -28,7 +28,7 @@ start_maildev() {
 
 # start_app PORT LOGFILE: the built server, with the environment already exported
 start_app() {
-  HOST=127.0.0.1 PORT="$1" setsid node "$ROOT/.output/server/index.mjs" >"$2" 2>&1 &
+  HOST=127.0.0.1 PORT="$1" setsid node ${RATCHET_APP_NODE_FLAGS:-} "$ROOT/.output/server/index.mjs" >"$2" 2>&1 &
   RATCHET_PIDS+=($!)
   APP_PID=$!
   wait_http "http://127.0.0.1:$1/api/health" 60

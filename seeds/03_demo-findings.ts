@@ -144,7 +144,7 @@ export async function seed(knex: Knex): Promise<void> {
       const path: Lane[] = d.lane === 'parked' ? ['parked'] : (['traced', 'bench', 'retest', 'closed'] as Lane[]).slice(0, ['spotted', 'traced', 'bench', 'retest', 'closed'].indexOf(d.lane))
       for (const lane of path) {
         const f = await lockFinding(trx, created.id)
-        await moveFinding(trx, f, { lane, version: f.version }, actor(d.by))
+        await moveFinding(trx, true, f, { lane, version: f.version }, actor(d.by))
       }
       for (const c of d.comments ?? []) {
         await addComment(trx, await lockFinding(trx, created.id), build.team_id, people[c.by].id, { body: c.body })

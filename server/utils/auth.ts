@@ -22,7 +22,7 @@ export async function requireUser(event: H3Event): Promise<SessionUser> {
   if (event.context.user) return event.context.user as SessionUser
   const session = await getUserSession(event)
   if (!session.user) throw createError({ statusCode: 401, message: 'Sign in first' })
-  const row = await useDb()('users').where({ id: session.user.id }).first('id', 'name', 'email', 'session_version')
+  const [row] = await prepared<{ id: string, name: string, email: string, session_version: number }>(useDb(), 'SELECT id, name, email, session_version FROM users WHERE id = $1', [session.user.id])
   if (!row || row.session_version !== session.sessionVersion) {
     await clearUserSession(event)
     throw createError({ statusCode: 401, message: 'Your session has ended; sign in again' })

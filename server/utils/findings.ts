@@ -2,7 +2,7 @@ import type { H3Event } from 'h3'
 import { createError } from 'h3'
 import type { Knex } from 'knex'
 import type { z } from 'zod'
-import type { BoardData, FindingCard, FindingSummary, FixView } from '../../shared/types/findings'
+import type { BoardData, CardFix, FindingCard, FindingSummary, FixView } from '../../shared/types/findings'
 import { hazardOf } from '../../shared/utils/caution'
 import type { FindingCreate, FindingListQuery, FindingPatch, MoveBody } from '../../shared/utils/findingSchemas'
 import { LANES, LANE_LABELS, OPEN_LANES, OVERRIDABLE, laneRefusal, verificationOf, type CellStatus, type Lane, type Severity, type Verification, type VerificationFacts } from '../../shared/utils/lanes'
@@ -10,11 +10,14 @@ import { RANK_SOFT_LIMIT, rankBetween, spreadRanks } from '../../shared/utils/ra
 import { roleAtLeast, type Role } from '../../shared/utils/roles'
 import type { Quantity } from '../../shared/utils/units'
 import type { BuildAccess, BuildRow } from './auth'
+import type { auditRow } from './audit'
 import { recordEvent } from './events'
+import { prepared } from './prepared'
 
 // Findings and the board: listing, creating, editing and moving them under the lane rules.
-// Plain Knex with the connection passed in (the seed uses it too). Writes to a build's board
-// (a new card, a move) take the board's lock, so two moves can't pick the same rank.
+// Plain Knex with the connection passed in (the seed uses it too). A new card takes the board's
+// lock; a move mostly doesn't (moveFinding says when it does), and the lane's unique ranks keep
+// two moves from picking the same rank.
 
 type Db = Knex | Knex.Transaction
 
@@ -74,10 +77,9 @@ export async function requireFindingRole(event: H3Event, min: Role, opts: { allo
   const [user, row] = await Promise.all([
     requireUser(event),
     session.user
-      ? db('findings as f').join('builds as b', 'b.id', 'f.build_id')
-          .leftJoin('memberships as m', q => q.on('m.team_id', 'b.team_id').andOnVal('m.user_id', session.user!.id))
-          .where('f.id', id)
-          .first('f.*', db.raw('to_jsonb(b) AS build'), 'm.role AS member_role') as Promise<(FindingRow & { build: BuildRow, member_role: Role | null }) | undefined>
+      ? prepared<FindingRow & { build: BuildRow, member_role: Role | null }>(db, `
+          SELECT f.*, to_jsonb(b) AS build, m.role AS member_role FROM findings f JOIN builds b ON b.id = f.build_id
+          LEFT JOIN memberships m ON m.team_id = b.team_id AND m.user_id = $1 WHERE f.id = $2`, [session.user.id, id]).then(rows => rows[0])
       : null,
   ])
   if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
@@ -98,13 +100,14 @@ const ISO_TIMES = `${isoOf('f.created_at')} AS created_at, ${isoOf('f.updated_at
 
 const LANE_ORDER = `array_position(ARRAY[${LANES.map(l => `'${l}'`).join(', ')}]::text[], f.lane::text)`
 
-export function fixesQuery(db: Db) {
+/** Fixes with their owner and landing revision; for a card (`forCard`), without their ids and texts. */
+export function fixesQuery(db: Db, forCard = false) {
   return db('fixes as x')
     .join('findings as f', 'f.id', 'x.finding_id')
     .leftJoin('users as u', 'u.id', 'x.owner_id')
     .leftJoin('revisions as lr', 'lr.id', 'x.landed_revision_id')
     .orderBy([{ column: 'x.created_at' }, { column: 'x.id' }])
-    .select('x.id', 'x.finding_id', 'x.description', 'x.state', 'x.owner_id', 'u.name as owner_name',
+    .select(...(forCard ? [] : ['x.id', 'x.description']), 'x.finding_id', 'x.state', 'x.owner_id', 'u.name as owner_name',
       db.raw(`to_char(x.due_on, 'YYYY-MM-DD') AS due_on`), 'lr.label as landed_label', 'lr.seq as landed_seq')
 }
 
@@ -120,15 +123,18 @@ export interface FixJoinedRow {
   landed_seq: number | null
 }
 
-export function fixView(r: FixJoinedRow): FixView {
+/** A fix as a card shows it. */
+function cardFixOf(r: FixJoinedRow): CardFix {
   return {
-    id: r.id,
-    description: r.description,
     state: r.state,
     owner: r.owner_id ? { id: r.owner_id, name: r.owner_name ?? 'Former member' } : null,
     dueOn: r.due_on,
     landedIn: r.landed_label,
   }
+}
+
+export function fixView(r: FixJoinedRow): FixView {
+  return { id: r.id, description: r.description, ...cardFixOf(r) }
 }
 
 interface ListedRow {
@@ -175,16 +181,17 @@ interface Listed {
   fixes: Map<string, FixJoinedRow[]>
 }
 
-async function listRows(db: Db, buildId: string, o: ListOptions, withDescription: boolean): Promise<Listed> {
+/** The build's findings with their targets and fixes; for the board, only what a card shows. */
+async function listRows(db: Db, buildId: string, o: ListOptions, forBoard: boolean): Promise<Listed> {
   const [rows, targetRows, fixRows] = await Promise.all([
     scoped(db('findings as f').leftJoin('revisions as s', 's.id', 'f.seen_on_revision_id'), buildId, o)
-      .select('f.id', 'f.title', 'f.lane', 'f.severity', 'f.rank', 'f.version', db.raw(ISO_TIMES),
-        's.label as seen_label', 's.seq as seen_seq', ...(withDescription ? ['f.description'] : []))
+      .select('f.id', 'f.title', 'f.lane', 'f.severity', 'f.rank', 'f.version', 's.label as seen_label', 's.seq as seen_seq',
+        ...(forBoard ? ['f.description'] : [db.raw(ISO_TIMES)]))
       .orderByRaw(`${LANE_ORDER}, (f.severity <> 'safety'), f.rank`) as Promise<ListedRow[]>,
     scoped(db('finding_targets as ft').join('findings as f', 'f.id', 'ft.finding_id').join('targets as t', 't.id', 'ft.target_id'), buildId, o)
       .orderBy([{ column: 't.position' }, { column: 't.key' }])
       .select('ft.finding_id', 't.id', 't.key') as Promise<{ finding_id: string, id: string, key: string }[]>,
-    scoped(fixesQuery(db), buildId, o) as Promise<FixJoinedRow[]>,
+    scoped(fixesQuery(db, forBoard), buildId, o) as Promise<FixJoinedRow[]>,
   ])
   const targets = new Map<string, { id: string, key: string }[]>()
   for (const t of targetRows) {
@@ -251,18 +258,22 @@ const NOW = Symbol('now')
  * `event` in its history when given, and returns its summary; null when someone else wrote
  * first. One statement.
  */
-async function writeIfCurrent(trx: Knex.Transaction, id: string, version: number, sets: Record<string, unknown>, event?: { kind: 'moved', actor: FindingActor, detail: Record<string, unknown> }): Promise<FindingSummary | null> {
-  const columns = Object.keys(sets)
-  const assign = columns.map(c => (sets[c] === NOW ? `${c} = now()` : `${c} = ?`))
-  const values = columns.filter(c => sets[c] !== NOW).map(c => sets[c])
+async function writeIfCurrent(db: Db, id: string, version: number, sets: Record<string, unknown>, event?: { kind: 'moved', actor: FindingActor, detail: Record<string, unknown> }, auditLog?: MoveAudit): Promise<FindingSummary | null> {
+  const values: unknown[] = []
+  const param = (v: unknown) => `$${values.push(v)}`
+  const assign = Object.entries(sets).map(([c, v]) => `${c} = ${v === NOW ? 'now()' : param(v)}`)
+  const where = `u.id = ${param(id)} AND u.version = ${param(version)}`
   const history = event
-    ? `, e AS (INSERT INTO finding_events (finding_id, kind, actor_id, actor_label, detail) SELECT f.id, ?, ?, ?, ?::jsonb FROM f)`
+    ? `, e AS (INSERT INTO finding_events (finding_id, kind, actor_id, actor_label, detail) SELECT f.id, ${param(event.kind)}, ${param(event.actor.userId)}, ${param(event.actor.label.slice(0, 254))}, ${param(JSON.stringify(event.detail))}::jsonb FROM f)`
     : ''
-  const { rows } = await trx.raw(`
+  const audited = auditLog
+    ? `, a AS (INSERT INTO audit_log (${Object.keys(auditLog).join(', ')}) SELECT ${Object.entries(auditLog).map(([c, v]) => (c === 'detail' ? `${param(v)}::jsonb` : param(v))).join(', ')} FROM f)`
+    : ''
+  // prepared: the text depends only on which columns change, so a few texts cover every move
+  const rows = await prepared<SummaryRow>(db, `
     WITH f AS (UPDATE findings AS u SET ${[...assign, 'version = u.version + 1', 'updated_at = now()'].join(', ')}
-      WHERE u.id = ? AND u.version = ? RETURNING u.*)${history}
-    SELECT ${SUMMARY_COLUMNS} FROM f`,
-  [...values, id, version, ...(event ? [event.kind, event.actor.userId, event.actor.label.slice(0, 254), JSON.stringify(event.detail)] : [])] as Knex.RawBinding[]) as { rows: SummaryRow[] }
+      WHERE ${where} RETURNING u.*)${history}${audited}
+    SELECT ${SUMMARY_COLUMNS} FROM f`, values)
   return rows[0] ? summaryOfRow(rows[0]) : null
 }
 
@@ -295,11 +306,21 @@ export async function buildBoard(db: Db, build: { id: string, slug: string, name
   ])
   const commentCount = new Map(comments.map(c => [c.finding_id, c.n]))
   const findings: FindingCard[] = l.rows.map((r) => {
-    const card = summaryOf(r, l) as FindingCard
-    card.description = r.description ?? ''
-    card.comments = commentCount.get(r.id) ?? 0
-    card.verifiedOn = null
-    card.closeBlocker = null
+    const card: FindingCard = {
+      id: r.id,
+      title: r.title,
+      lane: r.lane,
+      severity: r.severity,
+      rank: r.rank,
+      version: r.version,
+      seenOn: r.seen_label,
+      targets: (l.targets.get(r.id) ?? []).map(t => t.key),
+      fixes: (l.fixes.get(r.id) ?? []).map(cardFixOf),
+      description: r.description ?? '',
+      comments: commentCount.get(r.id) ?? 0,
+      verifiedOn: null,
+      closeBlocker: null,
+    }
     // a closed card has nothing left to verify
     if (r.lane !== 'closed') {
       const v = verificationOf(verificationFactsOf({ seq: r.seen_seq, label: r.seen_label }, l.targets.get(r.id) ?? [], l.fixes.get(r.id) ?? [], revisions))
@@ -443,17 +464,21 @@ export async function editFinding(trx: Knex.Transaction, f: FindingRow, patch: z
   return await findingSummary(trx, f.id)
 }
 
-/** What the lane rules look at for one finding. */
-export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes: number, verification: Verification }> {
-  // one after the other: `db` is the move's transaction
-  const seen = f.seen_on_revision_id ? await db('revisions').where({ id: f.seen_on_revision_id }).first('seq', 'label') : null
-  const targets = await db('finding_targets as ft').join('targets as t', 't.id', 'ft.target_id').where('ft.finding_id', f.id)
-    .orderBy([{ column: 't.position' }, { column: 't.key' }]).select('t.id', 't.key')
-  const fixes = await db('fixes as x').leftJoin('revisions as lr', 'lr.id', 'x.landed_revision_id').where('x.finding_id', f.id)
-    .select('x.state', 'lr.seq as landed_seq', 'lr.label as landed_label')
-  const revisions = await revisionCells(db, f.build_id)
-  const facts = verificationFactsOf({ seq: seen?.seq ?? null, label: seen?.label ?? null }, targets, fixes, revisions)
-  return { landedFixes: facts.landedIn.length, verification: verificationOf(facts) }
+/** What the lane rules look at for one finding, in one statement; `revisionIds` maps a revision's seq to its id. */
+export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes: number, verification: Verification, revisionIds: Map<number, string> }> {
+  const [row] = await prepared<{ seen: { seq: number, label: string } | null, targets: { id: string, key: string }[], fixes: Pick<FixJoinedRow, 'state' | 'landed_seq' | 'landed_label'>[], revisions: (VerificationFacts['revisions'][number] & { id: string })[] }>(db, `
+    SELECT
+      (SELECT json_build_object('seq', s.seq, 'label', s.label) FROM revisions s WHERE s.id = $2) AS seen,
+      (SELECT coalesce(json_agg(json_build_object('id', t.id, 'key', t.key) ORDER BY t.position, t.key), '[]')
+        FROM finding_targets ft JOIN targets t ON t.id = ft.target_id WHERE ft.finding_id = $1) AS targets,
+      (SELECT coalesce(json_agg(json_build_object('state', x.state, 'landed_seq', lr.seq, 'landed_label', lr.label)), '[]')
+        FROM fixes x LEFT JOIN revisions lr ON lr.id = x.landed_revision_id WHERE x.finding_id = $1) AS fixes,
+      (SELECT coalesce(json_agg(json_build_object('id', r.id, 'seq', r.seq, 'label', r.label, 'cells', c.cells) ORDER BY r.seq), '[]')
+        FROM revisions r JOIN (SELECT revision_id, json_object_agg(target_id, status) AS cells FROM cell_stats WHERE build_id = $3 GROUP BY revision_id) c
+          ON c.revision_id = r.id) AS revisions`,
+  [f.id, f.seen_on_revision_id, f.build_id])
+  const facts = verificationFactsOf(row!.seen ?? { seq: null, label: null }, row!.targets, row!.fixes, row!.revisions)
+  return { landedFixes: facts.landedIn.length, verification: verificationOf(facts), revisionIds: new Map(row!.revisions.map(r => [r.seq, r.id])) }
 }
 
 interface Neighbour { id: string, lane: Lane, rank: string, title: string, prev_rank: string | null, next_rank: string | null }
@@ -471,19 +496,19 @@ interface Place {
 }
 
 /** Where the moved card goes, from the neighbours the caller named, and its landed fixes: one query. */
-async function placeOf(trx: Knex.Transaction, f: FindingRow, lane: Lane, before?: string, after?: string): Promise<Place> {
+async function placeOf(db: Db, f: FindingRow, lane: Lane, before?: string, after?: string): Promise<Place> {
   const ids = [before, after].filter((x): x is string => Boolean(x))
   if (ids.includes(f.id)) throw createError({ statusCode: 400, message: 'A card can’t be placed next to itself', data: { fields: { [before === f.id ? 'before' : 'after']: 'The moved card itself' } } })
   // each named neighbour with the ranks around it in its lane, leaving the moved card out
-  const { rows } = await trx.raw(`
+  const rows = await prepared<{ last_rank: string | null, landed: number, neighbours: Neighbour[] }>(db, `
     SELECT
-      (SELECT max(p.rank) FROM findings p WHERE p.build_id = ? AND p.lane = ? AND p.id <> ?) AS last_rank,
-      (SELECT count(*) FROM fixes x WHERE x.finding_id = ? AND x.state = 'landed' AND x.landed_revision_id IS NOT NULL) AS landed,
+      (SELECT max(p.rank) FROM findings p WHERE p.build_id = $1 AND p.lane = $2 AND p.id <> $3) AS last_rank,
+      (SELECT count(*) FROM fixes x WHERE x.finding_id = $3 AND x.state = 'landed' AND x.landed_revision_id IS NOT NULL) AS landed,
       (SELECT coalesce(json_agg(json_build_object('id', n.id, 'lane', n.lane, 'rank', n.rank, 'title', n.title,
-        'prev_rank', (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank < n.rank AND p.id <> ? ORDER BY p.rank DESC LIMIT 1),
-        'next_rank', (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank > n.rank AND p.id <> ? ORDER BY p.rank ASC LIMIT 1))), '[]')
-        FROM findings n WHERE n.build_id = ? AND n.id = ANY(CAST(? AS uuid[]))) AS neighbours`,
-  [f.build_id, lane, f.id, f.id, f.id, f.id, f.build_id, ids]) as { rows: { last_rank: string | null, landed: number, neighbours: Neighbour[] }[] }
+        'prev_rank', (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank < n.rank AND p.id <> $3 ORDER BY p.rank DESC LIMIT 1),
+        'next_rank', (SELECT p.rank FROM findings p WHERE p.build_id = n.build_id AND p.lane = n.lane AND p.rank > n.rank AND p.id <> $3 ORDER BY p.rank ASC LIMIT 1))), '[]')
+        FROM findings n WHERE n.build_id = $1 AND n.id = ANY($4::uuid[])) AS neighbours`,
+  [f.build_id, lane, f.id, ids])
   const { last_rank: lastRank, neighbours } = rows[0]!
   const landedFixes = Number(rows[0]!.landed)
   const find = (id: string | undefined, field: string) => {
@@ -521,27 +546,39 @@ export interface MoveResult {
   finding: FindingSummary
   /** other cards of the lane got new ranks too (rare): reload the lane */
   respread: boolean
-  /** an Owner's override let it in (the caller records it in the audit log) */
+  /** an Owner's override let it in */
   override: boolean
 }
+
+/** The audit_log row an override writes with the move (auditRow's), its detail filled in by the move. */
+export type MoveAudit = Omit<ReturnType<typeof auditRow>, 'detail'> & { detail?: string }
 
 /**
  * Moves a finding into `lane` between two neighbours. 409 for a stale version or neighbours that
  * moved; 422 when the lane's rule refuses, unless an Owner overrides it with a reason.
+ *
+ * Two ways, one set of rules. Without the board's lock (`locked` false) a move is a few statements
+ * outside any transaction: where the card goes (and, into Closed, the verification), then one
+ * statement that writes it only if its version is unchanged and records its history. Fixes raise
+ * their finding's version, so the Retest rule read before still holds at the write, and the lane's
+ * unique ranks refuse a rank that a concurrent move took first. An Owner's override writes
+ * `auditLog` (when given) in the same statement. Answers null when the move needs the lock
+ * instead: a lane whose ranks need respreading, or a rank taken meanwhile. With the lock (`db` a
+ * transaction that called lockBoard) every move works.
  */
-export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.output<typeof MoveBody>, actor: FindingActor): Promise<MoveResult> {
+export async function moveFinding(db: Db, locked: boolean, f: FindingRow, body: z.output<typeof MoveBody>, actor: FindingActor, auditLog?: MoveAudit): Promise<MoveResult | null> {
   if (body.override && actor.role !== 'owner') {
     throw createError({ statusCode: 403, message: 'Only an Owner can override a lane rule' })
   }
-  // `f` was read before the board's lock: the write below checks the version again
-  if (body.version !== f.version) throw await staleWrite(trx, f.id, body.version)
   const lane = body.lane
   const changesLane = lane !== f.lane
+  // `f` was read before the request's statements: the write below checks the version again
+  if (body.version !== f.version) throw await staleWrite(db, f.id, body.version)
   let override: { reason: string, rule: string } | null = null
-  let verifiedBy: { seq: number, label: string } | null = null
-  const { prev, next, landedFixes } = await placeOf(trx, f, lane, body.before, body.after)
+  let verifiedBy: { id: string | null, label: string } | null = null
+  const { prev, next, landedFixes } = await placeOf(db, f, lane, body.before, body.after)
   if (changesLane && (lane === 'retest' || lane === 'closed')) {
-    const facts = lane === 'retest' ? { landedFixes, verification: { revision: null, reason: '' } } : await laneFactsOf(trx, f)
+    const facts = lane === 'retest' ? { landedFixes, verification: { revision: null, reason: '' }, revisionIds: new Map<number, string>() } : await laneFactsOf(db, f)
     const refusal = laneRefusal(lane, facts)
     if (refusal) {
       if (!body.override || !OVERRIDABLE.includes(lane)) {
@@ -550,7 +587,8 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
       override = { reason: body.override.reason, rule: refusal }
     }
     else if (lane === 'closed' && facts.verification.revision) {
-      verifiedBy = facts.verification.revision
+      const { seq, label } = facts.verification.revision
+      verifiedBy = { id: facts.revisionIds.get(seq) ?? null, label }
     }
   }
 
@@ -560,7 +598,8 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
   else {
     rank = rankBetween(prev, next)
     if (rank.length > RANK_SOFT_LIMIT) {
-      rank = await respreadLane(trx, f, lane, prev)
+      if (!locked) return null
+      rank = await respreadLane(db as Knex.Transaction, f, lane, prev)
       respread = true
     }
   }
@@ -568,7 +607,7 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
   const closing: Record<string, unknown> = {}
   if (changesLane && lane === 'closed') {
     closing.closed_at = NOW
-    closing.verified_revision_id = verifiedBy ? (await trx('revisions').where({ build_id: f.build_id, seq: verifiedBy.seq }).first('id'))?.id ?? null : null
+    closing.verified_revision_id = verifiedBy?.id ?? null
     closing.override_reason = override?.reason ?? null
     closing.override_by = override ? actor.userId : null
   }
@@ -578,8 +617,17 @@ export async function moveFinding(trx: Knex.Transaction, f: FindingRow, body: z.
   const moved = changesLane
     ? { kind: 'moved' as const, actor, detail: { from: f.lane, to: lane, ...(verifiedBy ? { verifiedBy: verifiedBy.label } : {}), ...(override ? { override } : {}) } }
     : undefined
-  const finding = await writeIfCurrent(trx, f.id, body.version, { lane, rank, ...closing }, moved)
-  if (!finding) throw await staleWrite(trx, f.id, body.version)
+  let finding: FindingSummary | null
+  try {
+    const audited = override && auditLog ? { ...auditLog, detail: JSON.stringify({ finding: f.id, from: f.lane, to: lane, reason: override.reason }) } : undefined
+    finding = await writeIfCurrent(db, f.id, body.version, { lane, rank, ...closing }, moved, audited)
+  }
+  catch (error) {
+    // without the lock, a concurrent move took this rank first: the locked way places it anew
+    if (!locked && (error as { code?: string }).code === '23505') return null
+    throw error
+  }
+  if (!finding) throw await staleWrite(db, f.id, body.version)
   return { finding, respread, override: Boolean(override) }
 }
 

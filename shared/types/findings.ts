@@ -31,8 +31,8 @@ export interface FindingSummary {
   updatedAt: string
 }
 
-/** A card of the board: the summary and what the board shows and filters on. */
-export interface FindingCard extends FindingSummary {
+/** What the board shows and filters on besides a finding's summary. */
+export interface CardFacts {
   /** the Markdown source, for the text filter */
   description: string
   comments: number
@@ -40,6 +40,17 @@ export interface FindingCard extends FindingSummary {
   verifiedOn: string | null
   /** why it can't close yet (null when it can) */
   closeBlocker: string | null
+}
+
+/** A fix as a card shows it. */
+export type CardFix = Pick<FixView, 'state' | 'owner' | 'dueOn' | 'landedIn'>
+
+/**
+ * A card of the board: the summary less what a card never shows (times, the fixes' texts), which
+ * keeps a board of thousands light; a move's answer (a whole summary) merges into it.
+ */
+export interface FindingCard extends Omit<FindingSummary, 'fixes' | 'createdAt' | 'updatedAt'>, CardFacts {
+  fixes: CardFix[]
 }
 
 export interface BoardMember { id: string, name: string }
@@ -90,7 +101,7 @@ export interface FindingTargetInfo extends BoardTarget {
 }
 
 /** GET /api/findings/:id */
-export interface FindingDetail extends FindingCard {
+export interface FindingDetail extends FindingSummary, CardFacts {
   descriptionHtml: string
   build: { id: string, slug: string, name: string }
   role: Role

@@ -78,6 +78,18 @@ describe('sessions', () => {
     expect(await counts()).toEqual(before)
   })
 
+  it('each cookie opens its own session, however often the server has seen it', async () => {
+    // the server keeps opened cookies (server/plugins/sessionCache.ts): interleave two people
+    const a = await signUp()
+    const b = await signUp()
+    for (let round = 0; round < 3; round++) {
+      const [ra, rb] = await Promise.all([a.client.get('/api/account'), b.client.get('/api/account')])
+      expect([ra.status, rb.status]).toEqual([200, 200])
+      expect(ra.body.user.email).toBe(a.email)
+      expect(rb.body.user.email).toBe(b.email)
+    }
+  })
+
   it('renews the session cookie at sign-in', async () => {
     const p = await signUp()
     const c = new Client()

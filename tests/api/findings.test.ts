@@ -221,6 +221,9 @@ describe('findings', () => {
       })
       const audit = await testDb()('audit_log').where({ action: 'finding.override' }).whereRaw(`detail->>'finding' = ?`, [f.id])
       expect(audit).toHaveLength(1)
+      // written with the move, by the Owner, in the build's team
+      expect(audit[0]).toMatchObject({ actor_id: w.owner.user.id, detail: { from: 'spotted', to: 'closed', reason: override.reason } })
+      expect(audit[0].team_id).toBe((await testDb()('builds').where({ id: b.id }).first('team_id')).team_id)
     })
 
     it('refuses neighbours that are not where the caller thought, and changes nothing', async () => {
