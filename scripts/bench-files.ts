@@ -3,6 +3,7 @@
 // server's peak RSS meanwhile, and the time to import a CSV of 100,000 rows.
 import { createHash, randomBytes } from 'node:crypto'
 import { createReadStream, createWriteStream } from 'node:fs'
+import { execFile } from 'node:child_process'
 import { copyFile, mkdir, rm } from 'node:fs/promises'
 import { request } from 'node:http'
 import { performance } from 'node:perf_hooks'
@@ -15,7 +16,7 @@ const MB = 1_000_000
 const SIZE = 200 * MB
 const CSV_ROWS = 100_000
 const SCRATCH = new URL('../.data/bench/', import.meta.url).pathname
-const RUNS = 3
+const RUNS = 5
 
 interface Ctx { cookie: string, teamSlug: string }
 
@@ -90,6 +91,27 @@ function upload(ctx: Ctx, build: string): Promise<{ id: string, sha256: string, 
   })
 }
 
+/** The same upload and download by curl, a client that adds little of its own; null without curl. */
+async function curlRoundTrip(ctx: Ctx, build: string): Promise<{ id: string, sha256: string, up: number, down: number } | null> {
+  const run = (args: string[]) => new Promise<string | null>((resolve, reject) => {
+    execFile('curl', ['-sS', '--fail-with-body', '-H', `cookie: ${ctx.cookie}`, ...args], { maxBuffer: 1 << 20 }, (err, out) => {
+      if ((err as NodeJS.ErrnoException | null)?.code === 'ENOENT') resolve(null)
+      else if (err) reject(new Error(`curl: ${err.message} ${out}`))
+      else resolve(out)
+    })
+  })
+  let started = performance.now()
+  const uploaded = await run(['-F', `file=@${SOURCE};filename=bench-200MB.bin;type=application/octet-stream`, `${BASE_URL}/api/v1/builds/${build}/files`])
+  if (uploaded === null) return null
+  const up = (performance.now() - started) / 1000
+  const { id, sha256 } = JSON.parse(uploaded) as { id: string, sha256: string }
+  started = performance.now()
+  await run(['-o', `${SCRATCH}curl-download.bin`, `${BASE_URL}/api/v1/files/${id}`])
+  const down = (performance.now() - started) / 1000
+  await rm(`${SCRATCH}curl-download.bin`, { force: true })
+  return { id, sha256, up, down }
+}
+
 /** Downloads a file, hashing it on the way. */
 function download(ctx: Ctx, id: string): Promise<{ bytes: number, sha256: string, seconds: number }> {
   const started = performance.now()
@@ -128,6 +150,8 @@ export const filesSection = {
     const copies: { streamed: number, kernel: number }[] = []
     const ups: number[] = []
     const downs: number[] = []
+    const curlUps: number[] = []
+    const curlDowns: number[] = []
     const before = rssOf(pid)
     let peakUp = before
     let peakDown = before
@@ -145,6 +169,15 @@ export const filesSection = {
         await call(ctx, 'DELETE', `/api/files/${up.id}`)
         ups.push(up.seconds)
         downs.push(down.seconds)
+        // a copy just before each upload: the disk's speed drifts as the page cache fills
+        copies.push(await plainCopy())
+        const byCurl = await curlRoundTrip(ctx, build.slug)
+        if (byCurl) {
+          if (byCurl.sha256 !== sha256) throw new Error('curl upload: the server’s sha256 differs from the file’s')
+          await call(ctx, 'DELETE', `/api/files/${byCurl.id}`)
+          curlUps.push(byCurl.up)
+          curlDowns.push(byCurl.down)
+        }
       }
     }
     finally {
@@ -158,6 +191,10 @@ export const filesSection = {
     console.log(`  200 MB over loopback, median of ${RUNS} runs: upload ${rate(up.seconds)} (${up.seconds.toFixed(2)} s), download ${rate(down.seconds)} (${down.seconds.toFixed(2)} s); sha256 identical every time`)
     console.log(`  plain copy on the same disk: streamed ${rate(copy.streamed)} (${copy.streamed.toFixed(2)} s), kernel copyFile ${rate(copy.kernel)} (${copy.kernel.toFixed(2)} s)`)
     console.log(`  upload takes ${(up.seconds / copy.streamed).toFixed(2)}× the streamed copy's time, download ${(down.seconds / copy.streamed).toFixed(2)}× (goal ≤ 2×)`)
+    if (curlUps.length) {
+      const [cu, cd] = [median(curlUps), median(curlDowns)]
+      console.log(`  the same by curl: upload ${rate(cu)} (${cu.toFixed(2)} s, ${(cu / copy.streamed).toFixed(2)}×), download ${rate(cd)} (${cd.toFixed(2)} s, ${(cd / copy.streamed).toFixed(2)}×)`)
+    }
     console.log(`  server RSS: ${(before / MB).toFixed(0)} MB before, peak ${(peakUp / MB).toFixed(0)} MB uploading (+${((peakUp - before) / MB).toFixed(1)}), `
       + `${(peakDown / MB).toFixed(0)} MB downloading (+${((peakDown - before) / MB).toFixed(1)}) (goal: growth < 100 MB)`)
 
