@@ -34,12 +34,13 @@ export interface DerivedStates {
 }
 
 /**
- * The latest state (in SI) of every derived target that depends on `key`; null when none does,
- * which costs one query. Call it before and after the change, then recordDerivedChanges.
+ * The latest state (in SI) of every derived target that depends on `key`, and with `self` of the
+ * target `key` too (its rule or formula is what changes); null when there is none, which costs
+ * one query. Call it before and after the change, then recordDerivedChanges.
  */
-export async function derivedStates(trx: Knex.Transaction, buildId: string, key: string): Promise<DerivedStates | null> {
+export async function derivedStates(trx: Knex.Transaction, buildId: string, key: string, self = false): Promise<DerivedStates | null> {
   const targets = await trx('targets').where({ build_id: buildId }) as TargetRow[]
-  const dependents = dependentsOf(targets, key)
+  const dependents = [...(self ? targets.filter(t => t.key === key) : []), ...dependentsOf(targets, key)]
   if (dependents.length === 0) return null
   const revisions = await trx('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label') as { id: string, label: string }[]
   const cells = await trx('cell_stats').where({ build_id: buildId }) as CellRow[]
@@ -66,9 +67,9 @@ export async function derivedStates(trx: Knex.Transaction, buildId: string, key:
 }
 
 /** Records target.met / target.slipped for the derived targets whose state the change moved. */
-export async function recordDerivedChanges(trx: Knex.Transaction, buildId: string, key: string, before: DerivedStates | null): Promise<void> {
+export async function recordDerivedChanges(trx: Knex.Transaction, buildId: string, key: string, before: DerivedStates | null, self = false): Promise<void> {
   if (!before) return
-  const after = await derivedStates(trx, buildId, key)
+  const after = await derivedStates(trx, buildId, key, self)
   for (const t of before.targets) {
     await recordTargetChange(trx, t, before.states.get(t.id) ?? null, after?.states.get(t.id) ?? null)
   }

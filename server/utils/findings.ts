@@ -208,7 +208,8 @@ async function listRows(db: Db, buildId: string, o: ListOptions, forBoard: boole
   return { rows, targets, fixes }
 }
 
-function summaryOf(r: ListedRow, l: Listed): FindingSummary {
+/** What a summary and a card share. */
+function cardBase(r: ListedRow, l: Listed) {
   return {
     id: r.id,
     title: r.title,
@@ -218,10 +219,11 @@ function summaryOf(r: ListedRow, l: Listed): FindingSummary {
     version: r.version,
     seenOn: r.seen_label,
     targets: (l.targets.get(r.id) ?? []).map(t => t.key),
-    fixes: (l.fixes.get(r.id) ?? []).map(fixView),
-    createdAt: r.created_at,
-    updatedAt: r.updated_at,
   }
+}
+
+function summaryOf(r: ListedRow, l: Listed): FindingSummary {
+  return { ...cardBase(r, l), fixes: (l.fixes.get(r.id) ?? []).map(fixView), createdAt: r.created_at, updatedAt: r.updated_at }
 }
 
 // One finding as API v1 shows it, as the select list over a findings row `f`; a SELECT and an
@@ -307,14 +309,7 @@ export async function buildBoard(db: Db, build: { id: string, slug: string, name
   const commentCount = new Map(comments.map(c => [c.finding_id, c.n]))
   const findings: FindingCard[] = l.rows.map((r) => {
     const card: FindingCard = {
-      id: r.id,
-      title: r.title,
-      lane: r.lane,
-      severity: r.severity,
-      rank: r.rank,
-      version: r.version,
-      seenOn: r.seen_label,
-      targets: (l.targets.get(r.id) ?? []).map(t => t.key),
+      ...cardBase(r, l),
       fixes: (l.fixes.get(r.id) ?? []).map(cardFixOf),
       description: r.description ?? '',
       comments: commentCount.get(r.id) ?? 0,

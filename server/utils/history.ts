@@ -10,7 +10,6 @@ import type { TargetRow } from './targets'
 // their inputs' cells (no query of their own, so a page's query count doesn't grow with them).
 // Plain imports: the seed and the benchmark use this outside the server.
 // (derivedEvents.ts uses it for the derived targets' digest events.)
-// TODO: editing a derived target's rule raises no event yet; readings of its inputs do.
 
 export interface TargetSeries {
   /** one entry per revision with a value, oldest first */

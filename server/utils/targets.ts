@@ -214,9 +214,15 @@ export async function updateTarget(trx: Knex.Transaction, t: TargetRow, patch: z
     const { max } = (await trx('targets').where({ build_id: t.build_id }).whereNull('archived_at').max('position as max').first()) as { max: number | null }
     changes.position = (max ?? -1) + 1
   }
-  const [row] = await trx('targets').where({ id: t.id }).update(changes).returning('*') as TargetRow[]
   const ruleChanged = ['comparator', 'threshold', 'threshold_high', 'noise_band'].some(k => k in changes)
-  if (ruleChanged) {
+  // a derived target's state is evaluated, not cached: take it before the row changes
+  const derived = (t.formula !== null || typeof changes.formula === 'string') && (ruleChanged || 'formula' in changes)
+  const derivedBefore = derived ? await derivedStates(trx, t.build_id, t.key, true) : null
+  const [row] = await trx('targets').where({ id: t.id }).update(changes).returning('*') as TargetRow[]
+  if (derived) {
+    await recordDerivedChanges(trx, t.build_id, t.key, derivedBefore, true)
+  }
+  else if (ruleChanged) {
     const before = await targetSnapshot(trx, row!.id)
     await redecideTarget(trx, cellTargetOf(row!))
     await recordTargetChange(trx, row!, before)

@@ -300,4 +300,19 @@ describe('digest events of a derived target', () => {
     await addReading(c, slug, { revision: 'R2', target: 'speed', values: [10.0], unit: 'rad/s' })
     expect(await powerEvents()).toHaveLength(1)
   })
+
+  it('editing its rule records the change it makes: slipped above 250 W, Met again below', async () => {
+    const c = w.engineer.client
+    const edit = async (threshold: number) => {
+      const res = await c.patch(`/api/builds/${slug}/targets/power`, { threshold })
+      expect(res.status, JSON.stringify(res.body)).toBe(200)
+    }
+    await edit(300)
+    expect((await powerEvents()).map(e => [e.type, e.revision])).toEqual([['target.slipped', 'R2'], ['target.met', 'R2']])
+    // a rule change that moves nothing records nothing
+    await edit(320)
+    expect(await powerEvents()).toHaveLength(2)
+    await edit(200)
+    expect((await powerEvents()).map(e => [e.type, e.revision])).toEqual([['target.met', 'R2'], ['target.slipped', 'R2'], ['target.met', 'R2']])
+  })
 })
