@@ -329,6 +329,7 @@ async function rawBoard(db: Knex, buildId: string, teamId: string) {
     db.raw('SELECT revision_id, target_id, status FROM cell_stats WHERE build_id = ?', [buildId]),
     db.raw('SELECT u.id, u.name, u.email FROM memberships m JOIN users u ON u.id = m.user_id WHERE m.team_id = ? ORDER BY u.name', [teamId]),
     db.raw('SELECT key, name, quantity FROM targets WHERE build_id = ? AND archived_at IS NULL ORDER BY position, key', [buildId]),
+    db.raw('SELECT * FROM targets WHERE build_id = ?', [buildId]),
   ])
   return findings.rows.length as number
 }

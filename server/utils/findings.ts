@@ -12,7 +12,10 @@ import type { Quantity } from '../../shared/utils/units'
 import type { BuildAccess, BuildRow } from './auth'
 import type { auditRow } from './audit'
 import { recordEvent } from './events'
+import { seriesOf } from './history'
 import { prepared } from './prepared'
+import type { CellRow } from './statsCache'
+import type { TargetRow } from './targets'
 
 // Findings and the board: listing, creating, editing and moving them under the lane rules.
 // Plain Knex with the connection passed in (the seed uses it too). A new card takes the board's
@@ -161,18 +164,31 @@ function scoped<T extends Knex.QueryBuilder>(q: T, buildId: string, o: ListOptio
   return q
 }
 
-/** The build's revisions that hold readings, with the status of each target tested there. */
-export async function revisionCells(db: Db, buildId: string): Promise<VerificationFacts['revisions']> {
+type RevisionCells = (VerificationFacts['revisions'][number] & { id: string })[]
+
+/**
+ * The build's revisions that hold readings, with the status of each target tested there:
+ * measured targets as cached, derived targets evaluated from their inputs' cells.
+ */
+export async function revisionCells(db: Db, buildId: string): Promise<RevisionCells> {
   // one after the other: `db` may be a transaction (one connection)
   const revisions = await db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq') as { id: string, label: string, seq: number }[]
-  const cells = await db('cell_stats').where({ build_id: buildId }).select('revision_id', 'target_id', 'status') as { revision_id: string, target_id: string, status: CellStatus }[]
+  const targets = await db('targets').where({ build_id: buildId }) as TargetRow[]
+  const derived = targets.filter(t => t.formula !== null)
+  const cells = await db('cell_stats').where({ build_id: buildId }).select(derived.length ? '*' : ['revision_id', 'target_id', 'status']) as CellRow[]
   const byRevision = new Map<string, Record<string, CellStatus>>()
-  for (const c of cells) {
-    const m = byRevision.get(c.revision_id) ?? {}
-    m[c.target_id] = c.status
-    byRevision.set(c.revision_id, m)
+  const mark = (revisionId: string, targetId: string, status: CellStatus) => {
+    const m = byRevision.get(revisionId) ?? {}
+    m[targetId] = status
+    byRevision.set(revisionId, m)
   }
-  return revisions.filter(r => byRevision.has(r.id)).map(r => ({ seq: r.seq, label: r.label, cells: byRevision.get(r.id)! }))
+  for (const c of cells) mark(c.revision_id, c.target_id, c.status)
+  if (derived.length) {
+    const series = seriesOf(targets, revisions, cells)
+    const idOf = new Map(revisions.map(r => [r.label, r.id]))
+    for (const t of derived) for (const h of series.get(t.id)?.history ?? []) mark(idOf.get(h.revision)!, t.id, h.status)
+  }
+  return revisions.filter(r => byRevision.has(r.id)).map(r => ({ id: r.id, seq: r.seq, label: r.label, cells: byRevision.get(r.id)! }))
 }
 
 interface Listed {
@@ -461,10 +477,10 @@ export async function editFinding(trx: Knex.Transaction, f: FindingRow, patch: z
 
 /** What the lane rules look at for one finding, in one statement; `revisionIds` maps a revision's seq to its id. */
 export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes: number, verification: Verification, revisionIds: Map<number, string> }> {
-  const [row] = await prepared<{ seen: { seq: number, label: string } | null, targets: { id: string, key: string }[], fixes: Pick<FixJoinedRow, 'state' | 'landed_seq' | 'landed_label'>[], revisions: (VerificationFacts['revisions'][number] & { id: string })[] }>(db, `
+  const [row] = await prepared<{ seen: { seq: number, label: string } | null, targets: { id: string, key: string, derived: boolean }[], fixes: Pick<FixJoinedRow, 'state' | 'landed_seq' | 'landed_label'>[], revisions: RevisionCells }>(db, `
     SELECT
       (SELECT json_build_object('seq', s.seq, 'label', s.label) FROM revisions s WHERE s.id = $2) AS seen,
-      (SELECT coalesce(json_agg(json_build_object('id', t.id, 'key', t.key) ORDER BY t.position, t.key), '[]')
+      (SELECT coalesce(json_agg(json_build_object('id', t.id, 'key', t.key, 'derived', t.formula IS NOT NULL) ORDER BY t.position, t.key), '[]')
         FROM finding_targets ft JOIN targets t ON t.id = ft.target_id WHERE ft.finding_id = $1) AS targets,
       (SELECT coalesce(json_agg(json_build_object('state', x.state, 'landed_seq', lr.seq, 'landed_label', lr.label)), '[]')
         FROM fixes x LEFT JOIN revisions lr ON lr.id = x.landed_revision_id WHERE x.finding_id = $1) AS fixes,
@@ -472,8 +488,11 @@ export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes:
         FROM revisions r JOIN (SELECT revision_id, json_object_agg(target_id, status) AS cells FROM cell_stats WHERE build_id = $3 GROUP BY revision_id) c
           ON c.revision_id = r.id) AS revisions`,
   [f.id, f.seen_on_revision_id, f.build_id])
-  const facts = verificationFactsOf(row!.seen ?? { seq: null, label: null }, row!.targets, row!.fixes, row!.revisions)
-  return { landedFixes: facts.landedIn.length, verification: verificationOf(facts), revisionIds: new Map(row!.revisions.map(r => [r.seq, r.id])) }
+  // a derived target has no cached cells: evaluate the build's (rare, and more queries)
+  const revisions = row!.targets.some(t => t.derived) ? await revisionCells(db, f.build_id) : row!.revisions
+  const targets = row!.targets.map(({ id, key }) => ({ id, key }))
+  const facts = verificationFactsOf(row!.seen ?? { seq: null, label: null }, targets, row!.fixes, revisions)
+  return { landedFixes: facts.landedIn.length, verification: verificationOf(facts), revisionIds: new Map(revisions.map(r => [r.seq, r.id])) }
 }
 
 interface Neighbour { id: string, lane: Lane, rank: string, title: string, prev_rank: string | null, next_rank: string | null }

@@ -185,6 +185,26 @@ describe('findings', () => {
       expect(open.body).toEqual({ canFile: false, byTarget: {} })
     })
 
+    it('a finding that hurts a derived target closes when the derived value is Met on a later revision', async () => {
+      const { b } = await arrange()
+      // wheel power = torque × speed, ≥ 400 W; speed 10 rad/s on R1 and R2
+      await newTarget(w.owner.client, b.slug, { key: 'wheel_speed', name: 'Wheel speed', unit: 'rad/s', comparator: 'atLeast', threshold: 1 })
+      await newTarget(w.owner.client, b.slug, { key: 'wheel_power', name: 'Wheel power', unit: 'W', comparator: 'atLeast', threshold: 400, formula: 'wheel_torque * wheel_speed' })
+      for (const r of ['R1', 'R2']) await addReading(w.owner.client, b.slug, { revision: r, target: 'wheel_speed', values: [9.98, 10.0, 10.02], unit: 'rad/s' })
+      const g = (await file(w.engineer.client, b.slug, { title: 'Power short on the ramp', severity: 'blocks-target', seenOn: 'R1', targets: ['wheel_power'] })).body
+      // R2: 38 N·m × 10 rad/s ≈ 381 W, Short
+      await addReading(w.owner.client, b.slug, { revision: 'R2', target: 'wheel_torque', values: [38.0, 38.4, 37.9], unit: 'N·m' })
+      await refused(b.id, 422, () => move(w.engineer.client, g.id, { lane: 'closed', version: 1 }), /Closing needs wheel_power Met on one revision .*; on R2: wheel_power Short/)
+      // R3: 43 N·m × 10 rad/s ≈ 434 W, Met
+      await addReading(w.owner.client, b.slug, { revision: 'R3', target: 'wheel_torque', values: [43.6, 42.9, 43.8, 43.1], unit: 'N·m' })
+      await addReading(w.owner.client, b.slug, { revision: 'R3', target: 'wheel_speed', values: [9.99, 10.0, 10.01], unit: 'rad/s' })
+      const board = await w.engineer.client.get(`/api/builds/${b.slug}/findings`)
+      expect(board.body.findings.find((c: { id: string }) => c.id === g.id)).toMatchObject({ verifiedOn: 'R3', closeBlocker: null })
+      const ok = await move(w.engineer.client, g.id, { lane: 'closed', version: 1 })
+      expect(ok.status, JSON.stringify(ok.body)).toBe(200)
+      expect((await w.reviewer.client.get(`/api/findings/${g.id}`)).body).toMatchObject({ lane: 'closed', verification: { revision: 'R3' }, override: null })
+    })
+
     it('a finding that hurts no target closes on any reading after the one it was seen on', async () => {
       const { b } = await arrange()
       const g = (await file(w.engineer.client, b.slug, { title: 'Rattle at 18 km/h', severity: 'cosmetic', seenOn: 'R1' })).body
