@@ -2,8 +2,8 @@ import type { Knex } from 'knex'
 
 // Demo only: the demo Reviewer follows Trailhopper by e-mail right away (post a reading that
 // meets a target and the message shows in the mail inbox) and Perch by the daily digest. The
-// events the earlier seeds recorded are history: marked as handed out, so no e-mail goes out
-// for them when the app starts. Idempotent.
+// events and comment mentions the earlier seeds recorded are history: marked as handed out, so
+// no e-mail goes out for them when the app starts. Idempotent.
 
 export async function seed(knex: Knex): Promise<void> {
   const reviewer = await knex('users').whereRaw('lower(email) = ?', ['reviewer@demo.test']).first('id')
@@ -11,6 +11,8 @@ export async function seed(knex: Knex): Promise<void> {
   if (!reviewer || builds.length === 0) return
   await knex.transaction(async (trx) => {
     await trx('events').whereIn('build_id', builds.map(b => b.id)).whereNull('fanned_out_at').update({ fanned_out_at: trx.fn.now() })
+    // so are the mentions in the demo's comments
+    await trx('mention_notices').whereNull('sent_at').update({ sent_at: trx.fn.now() })
     for (const b of builds) {
       await trx('subscriptions')
         .insert({ user_id: reviewer.id, build_id: b.id, frequency: b.slug === 'trailhopper' ? 'immediate' : 'daily' })

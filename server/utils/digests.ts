@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
 import type { PoolClient } from 'pg'
 import { digestEmail, type DigestEvent, type DigestInput } from '~~/email/digest'
+import type { RenderedEmail } from '~~/email/layout'
 
 type Db = Knex | Knex.Transaction
 export type Frequency = 'immediate' | 'daily' | 'weekly' | 'off'
@@ -82,7 +83,7 @@ export function renderDigest(p: { build: { id: string, name: string, slug: strin
  * Sends one e-mail at most once per (person, key): the delivery row is claimed first; a failed
  * send gives the claim back and throws, so the queue retries it later with backoff.
  */
-async function sendOnce(p: { userId: string, buildId: string, key: string, eventIds: number[], to: string, message: ReturnType<typeof renderDigest> }) {
+export async function sendOnce(p: { userId: string, buildId: string, key: string, eventIds: number[], to: string, message: RenderedEmail & { headers?: Record<string, string> } }) {
   const db = useDb()
   const claimed = await db('deliveries')
     .insert({ user_id: p.userId, build_id: p.buildId, key: p.key, status: 'sending', event_ids: p.eventIds })

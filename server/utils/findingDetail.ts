@@ -48,6 +48,9 @@ export async function addComment(trx: Knex.Transaction, f: FindingRow, teamId: s
   const members = await teamMembers(trx, teamId)
   const mentions = findMentions(body.body, members)
   const [row] = await trx('finding_comments').insert({ finding_id: f.id, author_id: authorId, body: body.body, mentions }).returning('id') as { id: string }[]
+  // the people to e-mail (server/utils/mentions.ts), not the author
+  const notify = mentions.filter(id => id !== authorId)
+  if (notify.length) await trx('mention_notices').insert(notify.map(id => ({ comment_id: row!.id, user_id: id })))
   const saved = await commentsQuery(trx).where('c.id', row!.id).first() as CommentRow
   return commentView(saved, new Map(members.map(m => [m.id, m.name])))
 }

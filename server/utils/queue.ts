@@ -11,6 +11,8 @@ export const QUEUES = {
   deliver: 'ratchet-deliver',
   /** one digest e-mail: { userId, buildId, period } */
   digest: 'ratchet-digest',
+  /** the e-mails to people mentioned in comments (server/utils/mentions.ts) */
+  mentions: 'ratchet-mentions',
   /** cron: queue the daily / weekly digests */
   daily: 'ratchet-digest-daily',
   weekly: 'ratchet-digest-weekly',
@@ -60,4 +62,12 @@ export function nudgeFanout() {
   useQueue()
     .then(boss => boss.send(QUEUES.fanout, {}, { singletonKey: 'fanout', singletonSeconds: 1, singletonNextSlot: true }))
     .catch(err => console.error('[queue] fanout nudge failed', err.message))
+}
+
+/** Asks a worker to send pending mention e-mails now. */
+export function nudgeMentions() {
+  if (process.env.RATCHET_QUEUE === 'off') return
+  useQueue()
+    .then(boss => boss.send(QUEUES.mentions, {}, { singletonKey: 'mentions', singletonSeconds: 1, singletonNextSlot: true }))
+    .catch(err => console.error('[queue] mentions nudge failed', err.message))
 }

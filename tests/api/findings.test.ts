@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Client, closeTestDb, makeWorld, signUp, testDb, type World } from '../support/api'
+import { linkIn, mailTo, waitForMail } from '../support/maildev'
 import { addReading, newRevision, newTarget } from '../support/measure'
 
 // Findings, fixes, comments and the lane rules, through the API as the board and a rig use it.
@@ -313,6 +314,26 @@ describe('findings', () => {
   })
 
   describe('comments', () => {
+    it('e-mails the members a comment mentions, once each, and not its author', async () => {
+      const f = (await file(w.engineer.client, w.build.slug, { title: `Mention test ${Date.now()}` })).body
+      const res = await w.reviewer.client.post(`/api/findings/${f.id}/comments`, { body: '@Eno @Olu Owner the bearing runs hot at 30 km/h; @Rae I logged it' })
+      expect(res.status).toBe(201)
+      expect(res.body.mentions.map((m: { name: string }) => m.name).sort()).toEqual(['Eno Engineer', 'Olu Owner', 'Rae Reviewer'])
+      const subject = new RegExp(`Rae Reviewer mentioned you on “${f.title}”`)
+      const [toEngineer, toOwner] = await Promise.all([waitForMail(w.engineer.email, subject), waitForMail(w.owner.email, subject)])
+      expect(toEngineer.text).toContain('the bearing runs hot at 30 km/h')
+      expect(linkIn(toEngineer, `/findings/${f.id}`)).toMatch(new RegExp(`/builds/${w.build.slug}/findings/${f.id}$`))
+      expect(toOwner.html).toContain('Open the finding')
+      // the sweep runs again: still one e-mail each, and none to the author who named themself
+      await new Promise(r => setTimeout(r, 1500))
+      expect((await mailTo(w.engineer.email)).filter(m => subject.test(m.subject))).toHaveLength(1)
+      expect((await mailTo(w.owner.email)).filter(m => subject.test(m.subject))).toHaveLength(1)
+      expect((await mailTo(w.reviewer.email)).filter(m => subject.test(m.subject))).toHaveLength(0)
+      const notices = await testDb()('mention_notices').where({ comment_id: res.body.id })
+      expect(notices.map(n => n.user_id).sort()).toEqual([w.engineer.user.id, w.owner.user.id].sort())
+      expect(notices.every(n => n.sent_at !== null)).toBe(true)
+    })
+
     it('stores Markdown, renders it sanitized, and lists the team members it mentions', async () => {
       const f = (await file(w.engineer.client, w.build.slug, { title: 'Comment test' })).body
       const res = await w.reviewer.client.post(`/api/findings/${f.id}/comments`, {

@@ -4,6 +4,8 @@ export default defineEventHandler(async (event) => {
   const { finding, build, user } = await requireFindingRole(event, 'reviewer')
   const body = await bodyAs(event, CommentBody)
   const comment = await useDb().transaction(trx => addComment(trx, finding, build.team_id, user!.id, body))
+  // the people it mentions get an e-mail
+  if (comment.mentions.some(m => m.id !== user!.id)) nudgeMentions()
   setResponseStatus(event, 201)
   return comment
 })
