@@ -268,6 +268,9 @@ export async function findingSummary(db: Db, id: string): Promise<FindingSummary
   return summaryOfRow(rows[0])
 }
 
+/** Where a move without the board's lock put the card: writeIfCurrent checks it still holds. */
+interface Between { buildId: string, lane: Lane, prev: string | null, next: string | null }
+
 /** Marks a value for writeIfCurrent: the database's clock. */
 const NOW = Symbol('now')
 
@@ -276,11 +279,20 @@ const NOW = Symbol('now')
  * `event` in its history when given, and returns its summary; null when someone else wrote
  * first. One statement.
  */
-async function writeIfCurrent(db: Db, id: string, version: number, sets: Record<string, unknown>, event?: { kind: 'moved', actor: FindingActor, detail: Record<string, unknown> }, auditLog?: MoveAudit): Promise<FindingSummary | null> {
+async function writeIfCurrent(db: Db, id: string, version: number, sets: Record<string, unknown>, event?: { kind: 'moved', actor: FindingActor, detail: Record<string, unknown> }, auditLog?: MoveAudit, between?: Between): Promise<FindingSummary | null> {
   const values: unknown[] = []
   const param = (v: unknown) => `$${values.push(v)}`
   const assign = Object.entries(sets).map(([c, v]) => `${c} = ${v === NOW ? 'now()' : param(v)}`)
-  const where = `u.id = ${param(id)} AND u.version = ${param(version)}`
+  let where = `u.id = ${param(id)} AND u.version = ${param(version)}`
+  if (between) {
+    // the neighbours still hold the ranks read, with no card between them
+    const lane = `p.build_id = ${param(between.buildId)} AND p.lane = ${param(between.lane)} AND p.id <> u.id`
+    const prev = param(between.prev)
+    const next = param(between.next)
+    where += ` AND NOT EXISTS (SELECT 1 FROM findings p WHERE ${lane} AND (${prev}::text IS NULL OR p.rank > ${prev}::text) AND (${next}::text IS NULL OR p.rank < ${next}::text))`
+      + ` AND (${prev}::text IS NULL OR EXISTS (SELECT 1 FROM findings p WHERE ${lane} AND p.rank = ${prev}::text))`
+      + ` AND (${next}::text IS NULL OR EXISTS (SELECT 1 FROM findings p WHERE ${lane} AND p.rank = ${next}::text))`
+  }
   const history = event
     ? `, e AS (INSERT INTO finding_events (finding_id, kind, actor_id, actor_label, detail) SELECT f.id, ${param(event.kind)}, ${param(event.actor.userId)}, ${param(event.actor.label.slice(0, 254))}, ${param(JSON.stringify(event.detail))}::jsonb FROM f)`
     : ''
@@ -575,10 +587,12 @@ export type MoveAudit = Omit<ReturnType<typeof auditRow>, 'detail'> & { detail?:
  * outside any transaction: where the card goes (and, into Closed, the verification), then one
  * statement that writes it only if its version is unchanged and records its history. Fixes raise
  * their finding's version, so the Retest rule read before still holds at the write, and the lane's
- * unique ranks refuse a rank that a concurrent move took first. An Owner's override writes
+ * unique ranks refuse a rank that a concurrent move took first; the write also checks that the
+ * neighbours still hold the ranks read, with nothing between them. An Owner's override writes
  * `auditLog` (when given) in the same statement. Answers null when the move needs the lock
- * instead: a lane whose ranks need respreading, or a rank taken meanwhile. With the lock (`db` a
- * transaction that called lockBoard) every move works.
+ * instead: a lane whose ranks need respreading, a rank taken or neighbours moved meanwhile, or a
+ * version that changed (the locked way answers the 409). With the lock (`db` a transaction that
+ * called lockBoard) every move works.
  */
 export async function moveFinding(db: Db, locked: boolean, f: FindingRow, body: z.output<typeof MoveBody>, actor: FindingActor, auditLog?: MoveAudit): Promise<MoveResult | null> {
   if (body.override && actor.role !== 'owner') {
@@ -634,13 +648,15 @@ export async function moveFinding(db: Db, locked: boolean, f: FindingRow, body: 
   let finding: FindingSummary | null
   try {
     const audited = override && auditLog ? { ...auditLog, detail: JSON.stringify({ finding: f.id, from: f.lane, to: lane, reason: override.reason }) } : undefined
-    finding = await writeIfCurrent(db, f.id, body.version, { lane, rank, ...closing }, moved, audited)
+    finding = await writeIfCurrent(db, f.id, body.version, { lane, rank, ...closing }, moved, audited, locked ? undefined : { buildId: f.build_id, lane, prev, next })
   }
   catch (error) {
     // without the lock, a concurrent move took this rank first: the locked way places it anew
     if (!locked && (error as { code?: string }).code === '23505') return null
     throw error
   }
+  // without the lock, nothing written may also mean the neighbours moved: the locked way decides
+  if (!finding && !locked) return null
   if (!finding) throw await staleWrite(db, f.id, body.version)
   return { finding, respread, override: Boolean(override) }
 }

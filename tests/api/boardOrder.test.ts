@@ -156,6 +156,29 @@ describe('the board’s order under random moves', () => {
     expectValidRanks(rows)
   })
 
+  it('rounds of simultaneous moves next to cards that are moving too keep every lane valid', async () => {
+    const { b, cards } = await arrange(12, 'Crossing moves')
+    const rnd = lcg(11)
+    for (let round = 0; round < 6; round++) {
+      const rows = await serverOrder(w.reviewer.client, b.slug)
+      const pick = [...rows].sort(() => rnd() - 0.5).slice(0, 6)
+      const results = await Promise.all(pick.map((card) => {
+        const lane: Lane = rnd() < 0.5 ? 'spotted' : 'traced'
+        // a neighbour from the whole board: it may be moving in this round too
+        const peers = rows.filter(r => r.lane === lane && r.id !== card.id)
+        const neighbour = peers.length ? peers[Math.floor(rnd() * peers.length)]! : null
+        const where = neighbour ? (rnd() < 0.5 ? { before: neighbour.id } : { after: neighbour.id }) : {}
+        return w.engineer.client.post(`/api/v1/findings/${card.id}/move`, { lane, version: card.version, ...where })
+      }))
+      // each lands, or is refused because a neighbour moved first; never a server error
+      for (const r of results) expect([200, 409], JSON.stringify(r.body)).toContain(r.status)
+      expect(results.some(r => r.status === 200)).toBe(true)
+      const after = await serverOrder(w.reviewer.client, b.slug)
+      expect(after.map(r => r.id).sort()).toEqual([...cards.keys()].sort())
+      expectValidRanks(after)
+    }
+  })
+
   it('simultaneous moves into one place of a lane all land, each with its own rank', async () => {
     const { b, cards } = await arrange(10, 'Simultaneous')
     const ids = [...cards.keys()]
