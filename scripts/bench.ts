@@ -400,11 +400,11 @@ const boardSection: Section = {
       card.version = moved.version
     }
     // into Closed: verified by R6's readings (the rule reads the revisions' statuses), and with an
-    // Owner's override (under the board's lock, with its audit row)
+    // Owner's override (its audit row written by the move's statement)
     const closeTimes: number[] = []
     const overrideTimes: number[] = []
     const open = cards.filter(c => c.lane !== 'closed' && c.fixes.some(f => f.state === 'landed'))
-    for (const [k, card] of open.slice(0, BOARD_MOVES / 5).entries()) {
+    for (const [k, card] of open.slice(0, BOARD_MOVES / 3).entries()) {
       const overriding = k % 2 === 1
       const { res, text } = await http(ctx, 'POST', `/api/v1/findings/${card.id}/move`, { lane: 'closed', version: card.version, ...(overriding ? { override: { reason: 'Bench: closed by the Owner' } } : {}) })
       if (res.status !== 200) throw new Error(`close: ${res.status} ${text.slice(0, 200)}`)
@@ -425,7 +425,7 @@ const boardSection: Section = {
     console.log(`  move between free lanes (${moveTimes.length})        ${ms(move.median)} / ${ms(move.p95)}`)
     console.log(`  move into Retest, rule read (${retestTimes.length})     ${ms(retest.median)} / ${ms(retest.p95)}   SQL queries per move: ${[...queries].sort((a, b) => a - b).join(', ')}`)
     console.log(`  into Closed, verified (${closeTimes.length})          ${ms(close.median)} / ${ms(close.p95)}`)
-    console.log(`  into Closed, Owner override (${overrideTimes.length})    ${ms(overrideClose.median)} / ${ms(overrideClose.p95)}   (board lock and audit row)`)
+    console.log(`  into Closed, Owner override (${overrideTimes.length})    ${ms(overrideClose.median)} / ${ms(overrideClose.p95)}   (with its audit row)`)
     console.log(`  of a move, waiting on SQL (all ${moveDb.length})      ${ms(db.median)} / ${ms(db.p95)}`)
     console.log()
     const worst = Math.max(move.p95, retest.p95, close.p95, overrideClose.p95)
