@@ -257,7 +257,10 @@ export async function receiveUpload(event: H3Event, access: BuildAccess): Promis
       catch (err) {
         stream.unpipe(meter)
         stream.resume()
-        throw err
+        // the limits and a client that went away come with their status; anything else is the store
+        if (statusOf(err)) throw err
+        console.error(`files: storing ${key} failed:`, err)
+        throw createError({ statusCode: 503, message: 'The file can’t be stored right now; try again in a while' })
       }
       return { filename, bytes: meter.bytes, sha256: meter.digest(), head: meter.firstBytes() }
     })

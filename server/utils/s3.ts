@@ -139,14 +139,21 @@ export class S3Store {
       if (text.includes('<Error>')) throw new Error(`S3 CompleteMultipartUpload: ${text.slice(0, 300)}`)
     }
     catch (err) {
-      if (uploadId !== null) await this.call('DELETE', this.url(key, { uploadId }), { ok: [204, 200, 404] }).catch(() => {})
+      if (uploadId !== null) {
+        // an upload left open keeps its parts (and their cost) until a lifecycle rule ends it,
+        // and it is no object, so the sweep never sees it: say so rather than stay silent
+        await this.call('DELETE', this.url(key, { uploadId }), { ok: [204, 200, 404] }).catch((e) => {
+          console.error(`files: could not abort the multipart upload ${uploadId} of ${key}; its parts stay in the bucket:`, e)
+        })
+      }
       throw err
     }
   }
 
   async get(key: string, range?: { start: number, end: number }): Promise<Readable> {
     const headers: Record<string, string> = range ? { range: `bytes=${range.start}-${range.end}` } : {}
-    const res = await this.call('GET', this.url(key), { headers, ok: [200, 206] })
+    // a 200 to a ranged GET would be the whole object where the caller sends only the range
+    const res = await this.call('GET', this.url(key), { headers, ok: range ? [206] : [200] })
     if (!res.body) throw new Error(`S3 GET ${key}: no body`)
     return Readable.fromWeb(res.body as unknown as WebReadableStream<Uint8Array>)
   }

@@ -100,7 +100,13 @@ class S3FileStore implements FileStore {
   put(key: string, body: Readable) { return this.s3.put(assertStorageKey(key), body) }
   get(key: string, range?: { start: number, end: number }) { return this.s3.get(assertStorageKey(key), range) }
   remove(key: string) { return this.s3.remove(assertStorageKey(key)) }
-  list() { return this.s3.list() }
+
+  // the bucket may hold objects of others: only keys of this store's shape are its own
+  async* list() {
+    for await (const o of this.s3.list()) {
+      if (KEY.test(o.key)) yield o
+    }
+  }
 }
 
 /** A store for the given settings (scripts and tests build one from their own settings). */

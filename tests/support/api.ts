@@ -21,7 +21,14 @@ function nextIp(): string {
 export class Client {
   cookie = ''
   bearer = ''
+  /** the server it talks to */
+  base = BASE_URL
   constructor(public ip: string = nextIp()) {}
+
+  /** The same caller (cookies, token, address) talking to another server of the app. */
+  at(base: string): Client {
+    return Object.assign(new Client(this.ip), { cookie: this.cookie, bearer: this.bearer, base })
+  }
 
   async request<T = any>(method: string, path: string, body?: unknown, extraHeaders: Record<string, string> = {}): Promise<ApiResponse<T>> {
     const headers: Record<string, string> = { 'x-forwarded-for': this.ip, ...extraHeaders }
@@ -33,7 +40,7 @@ export class Client {
       headers['content-type'] = 'application/json'
       payload = JSON.stringify(body)
     }
-    const res = await fetch(`${BASE_URL}${path}`, { method, headers, body: payload, redirect: 'manual' })
+    const res = await fetch(`${this.base}${path}`, { method, headers, body: payload, redirect: 'manual' })
     const setCookie = res.headers.getSetCookie()
     for (const c of setCookie) {
       const [pair] = c.split(';')

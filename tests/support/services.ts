@@ -1,5 +1,5 @@
 import { spawn } from 'node:child_process'
-import { appendFileSync, readFileSync } from 'node:fs'
+import { appendFileSync, closeSync, openSync, readFileSync } from 'node:fs'
 import { BASE_URL, MAILDEV_URL, ROOT } from './env'
 
 // Stopping and starting the servers that scripts/test.sh started, for tests of what survives a
@@ -38,8 +38,8 @@ async function stop(pid: number, what: string) {
   await until(async () => !alive(pid), `${what} to stop`)
 }
 
-function launch(cmd: string, args: string[], env: NodeJS.ProcessEnv): number {
-  const child = spawn(cmd, args, { cwd: ROOT, env, detached: true, stdio: 'ignore' })
+function launch(cmd: string, args: string[], env: NodeJS.ProcessEnv, output: number | 'ignore' = 'ignore'): number {
+  const child = spawn(cmd, args, { cwd: ROOT, env, detached: true, stdio: ['ignore', output, output] })
   child.unref()
   appendFileSync(process.env.RATCHET_TEST_PIDFILE!, `${child.pid}\n`)
   return child.pid!
@@ -66,11 +66,25 @@ export async function startApp() {
   await until(async () => (await fetch(`${BASE_URL}/api/health`)).ok, 'the app to answer')
 }
 
-/** A second app server on another port, sharing the database and the queue. */
-export async function startSecondApp(port: number): Promise<() => Promise<void>> {
-  const pid = launch(process.execPath, [`${ROOT}.output/server/index.mjs`], { ...process.env, HOST: '127.0.0.1', PORT: String(port) })
+/** A second app server on another port, sharing the database and the queue; `env` adds to or overrides the first's. */
+export async function startSecondApp(port: number, env: Record<string, string> = {}): Promise<() => Promise<void>> {
+  const pid = launch(process.execPath, [`${ROOT}.output/server/index.mjs`], { ...process.env, ...env, HOST: '127.0.0.1', PORT: String(port) })
   await until(async () => (await fetch(`http://127.0.0.1:${port}/api/health`)).ok, 'the second app to answer')
   return () => stop(pid, 'the second app')
+}
+
+/**
+ * s3rver (an S3-compatible server keeping its buckets in `dir`) on 127.0.0.1:`port`, its log in
+ * `log`. Its one key pair is S3RVER / S3RVER.
+ */
+export async function startS3rver(port: number, dir: string, log: string): Promise<() => Promise<void>> {
+  const out = openSync(log, 'a')
+  const pid = launch(process.execPath, [`${ROOT}node_modules/s3rver/bin/s3rver.js`, '--directory', dir, '--address', '127.0.0.1', '--port', String(port), '--no-vhost-buckets'],
+    process.env, out)
+  closeSync(out)
+  // any answer will do (an unsigned request to the service root is an error document)
+  await until(async () => (await fetch(`http://127.0.0.1:${port}/`)).status > 0, 's3rver to answer')
+  return () => stop(pid, 's3rver')
 }
 
 export function pidsStarted(): number[] {

@@ -4,6 +4,7 @@ import type { AddressInfo } from 'node:net'
 import { Readable } from 'node:stream'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { S3Store } from '../../server/utils/s3'
+import { createFileStore } from '../../server/utils/storage'
 
 // The S3 store against a small in-process stand-in for an S3-compatible service: it keeps
 // objects and multipart uploads in memory, answers the XML S3 answers, and refuses a request
@@ -70,7 +71,8 @@ function fakeS3() {
         return
       }
       const m = /bytes=(\d+)-(\d+)/.exec(req.headers.range ?? '')
-      if (m) res.writeHead(206).end(obj.body.subarray(Number(m[1]), Number(m[2]) + 1))
+      // a server (or a proxy on the way) that ignores Range for this one key
+      if (m && key !== 'ab/ranges-ignored') res.writeHead(206).end(obj.body.subarray(Number(m[1]), Number(m[2]) + 1))
       else res.end(obj.body)
     }
     else if (req.method === 'DELETE') {
@@ -128,6 +130,28 @@ describe('S3Store', () => {
     await store.remove('cd/small')
     expect(fake.objects.has('cd/small')).toBe(false)
     await expect(store.get('cd/small')).rejects.toThrow(/404/)
+  })
+
+  it('refuses a whole object sent back for a ranged GET, rather than pass it off as the range', async () => {
+    await store.put('ab/ranges-ignored', Readable.from([Buffer.from('0123456789')]))
+    expect((await text(await store.get('ab/ranges-ignored'))).toString()).toBe('0123456789')
+    await expect(store.get('ab/ranges-ignored', { start: 2, end: 4 })).rejects.toThrow(/ 200/)
+    await store.remove('ab/ranges-ignored')
+  })
+
+  it('the file store lists only keys of its own shape: other objects in the bucket are not its orphans', async () => {
+    const port = ((fake.server as Server).address() as AddressInfo).port
+    const files = createFileStore({ driver: 's3', dir: '', s3: { endpoint: `http://127.0.0.1:${port}`, bucket: 'bucket', region: 'us-east-1', accessKeyId: 'KEY', secretAccessKey: 'SECRET' } })
+    const own = '3f/3f2504e0-4f89-11d3-9a0c-0305e82c3301'
+    await store.put(own, Readable.from([Buffer.from('evidence')]))
+    await store.put('backups/2026-01-01.sql', Readable.from([Buffer.from('someone else’s')]))
+    const listed: string[] = []
+    for await (const o of files.list()) listed.push(o.key)
+    expect(listed).toContain(own)
+    expect(listed.every(k => /^[0-9a-f]{2}\/[0-9a-f-]{36}$/.test(k))).toBe(true)
+    expect(fake.objects.has('backups/2026-01-01.sql')).toBe(true)
+    await store.remove(own)
+    await store.remove('backups/2026-01-01.sql')
   })
 
   it('gives up a multipart upload whose stream fails, leaving no upload open', async () => {
