@@ -1,16 +1,49 @@
 import type { z } from 'zod'
 
 /**
+ * What every form shares: the submit attempt, the pending flag and the server's answer (its
+ * message for the form, its messages per field, cleared as soon as the values change).
+ */
+function useSubmission(values: object) {
+  const submitted = ref(false)
+  const pending = ref(false)
+  const formError = ref('')
+  const serverFields = ref<Record<string, string>>({})
+
+  watch(() => ({ ...values }), () => { serverFields.value = {} }, { deep: true })
+
+  /** Marks the attempt; when `valid()`, runs `send`. True once `send` has succeeded. */
+  async function attempt(valid: () => boolean, send: () => Promise<void>): Promise<boolean> {
+    submitted.value = true
+    formError.value = ''
+    if (!valid()) return false
+    pending.value = true
+    try {
+      await send()
+      return true
+    }
+    catch (err) {
+      const info = apiError(err)
+      formError.value = info.message
+      serverFields.value = info.fields
+      return false
+    }
+    finally {
+      pending.value = false
+    }
+  }
+
+  return { submitted, pending, formError, serverFields, attempt }
+}
+
+/**
  * A form validated as you type by the same zod schema the server uses. A field's message shows
  * once it has been touched (or after a submit attempt); the server's messages replace them.
  */
 export function useZodForm<S extends z.ZodObject>(schema: S, initial: z.input<S>) {
   const values = reactive({ ...initial }) as z.input<S>
   const touched = reactive<Record<string, boolean>>({})
-  const serverFields = ref<Record<string, string>>({})
-  const formError = ref('')
-  const submitted = ref(false)
-  const pending = ref(false)
+  const { submitted, pending, formError, serverFields, attempt } = useSubmission(values)
 
   const clientErrors = computed(() => {
     const r = schema.safeParse(values)
@@ -25,30 +58,36 @@ export function useZodForm<S extends z.ZodObject>(schema: S, initial: z.input<S>
     return { ...out, ...serverFields.value }
   })
 
-  watch(() => ({ ...values }), () => { serverFields.value = {} }, { deep: true })
-
   /** Validates, then runs `send` with the parsed values; server errors land in the form. */
   async function submit(send: (data: z.output<S>) => Promise<void>) {
-    submitted.value = true
-    formError.value = ''
-    const r = schema.safeParse(values)
-    if (!r.success) return
-    pending.value = true
-    try {
-      await send(r.data)
+    let parsed: z.output<S> | undefined
+    const valid = () => {
+      const r = schema.safeParse(values)
+      parsed = r.data
+      return r.success
+    }
+    if (await attempt(valid, () => send(parsed!))) {
       // a fresh start: fields the sender cleared don't show "required" at once
       submitted.value = false
       for (const k of Object.keys(touched)) touched[k] = false
     }
-    catch (err) {
-      const info = apiError(err)
-      formError.value = info.message
-      serverFields.value = info.fields
-    }
-    finally {
-      pending.value = false
-    }
   }
 
   return { values, touched, errors, formError, pending, submit }
+}
+
+/**
+ * A form whose checks the component works out itself (`clientErrors`: field → message, for
+ * rules beyond one schema), shown only after a submit attempt; the server's messages join them.
+ */
+export function useCheckedForm(values: object, clientErrors: Ref<Record<string, string>>) {
+  const { submitted, pending, formError, serverFields, attempt } = useSubmission(values)
+  const errors = computed<Record<string, string>>(() => ({ ...(submitted.value ? clientErrors.value : {}), ...serverFields.value }))
+
+  /** Runs `send` when there is nothing to correct; server errors land in the form. */
+  async function submit(send: () => Promise<void>) {
+    await attempt(() => !Object.keys(clientErrors.value).length, send)
+  }
+
+  return { errors, formError, pending, submit }
 }

@@ -1,18 +1,13 @@
-import type { Browser, BrowserContext, Locator, Page } from 'playwright-core'
+import type { Browser, Locator, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { closeTestDb, makeWorld, type SignedUp, type World } from '../support/api'
-import { goto, launchBrowser, newContext, screenshot } from '../support/browser'
+import { closeTestDb, makeWorld, type World } from '../support/api'
+import { goto, launchBrowser, newContext, screenshot, signIn } from '../support/browser'
 
 // The findings board in Chromium: drag and drop with real pointer moves, keyboard moves with
 // their announcements, a refused move rolled back with its reason, and hostile text that must
 // stay text.
 
 const PAYLOAD = '<img src=x onerror="window.__pwned=1">'
-
-async function signIn(context: BrowserContext, who: SignedUp) {
-  const res = await context.request.post('/api/auth/login', { data: { email: who.email, password: who.password } })
-  expect(res.status()).toBe(200)
-}
 
 /** Press on the card's top-left corner (away from its link and menu), move in steps, release over the lane. */
 async function drag(page: Page, card: Locator, lane: Locator) {

@@ -1,7 +1,7 @@
-import type { Browser, BrowserContext, Page } from 'playwright-core'
+import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { makeWorld, type SignedUp, type World } from '../support/api'
-import { goto, launchBrowser, newContext, screenshot } from '../support/browser'
+import { mustSucceed, type World } from '../support/api'
+import { goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
 
 // Expected strings are worked out by hand: mean ± t(0.975, ν)·u with two significant digits on the
 // half-width, in the target's display unit. 1 mph = 1.609344 km/h, 1 lbf·ft = 1.3558179483 N·m.
@@ -14,52 +14,30 @@ import { goto, launchBrowser, newContext, screenshot } from '../support/browser'
 async function arrange(w: World) {
   const c = w.owner.client
   const b = w.build.slug
-  const ok = async (p: Promise<{ status: number, body: unknown }>, what: string) => {
-    const r = await p
-    if (r.status !== 201 && r.status !== 200) throw new Error(`${what}: ${r.status} ${JSON.stringify(r.body)}`)
-    return r
-  }
-  await ok(c.patch(`/api/builds/${b}`, { name: 'Trailhopper', summary: 'Hub drive unit of an electric cargo trike' }), 'rename build')
-  await ok(c.post(`/api/v1/builds/${b}/targets`, { key: 'top_speed', name: 'Assisted top speed', unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 }), 'target top_speed')
-  await ok(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_torque', name: 'Continuous wheel torque', unit: 'N·m', comparator: 'atLeast', threshold: 40, noiseBand: 0.5 }), 'target wheel_torque')
-  await ok(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R1', summary: 'First hub motor on the bench', changes: ['spur gear set'] }), 'R1')
-  await ok(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R2', summary: 'Helical gears', changes: ['helical gear set instead of spur'] }), 'R2')
+  await mustSucceed(c.patch(`/api/builds/${b}`, { name: 'Trailhopper', summary: 'Hub drive unit of an electric cargo trike' }), 'rename build')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'top_speed', name: 'Assisted top speed', unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 }), 'target top_speed')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_torque', name: 'Continuous wheel torque', unit: 'N·m', comparator: 'atLeast', threshold: 40, noiseBand: 0.5 }), 'target wheel_torque')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R1', summary: 'First hub motor on the bench', changes: ['spur gear set'] }), 'R1')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R2', summary: 'Helical gears', changes: ['helical gear set instead of spur'] }), 'R2')
   const readings = [
     { revision: 'R1', target: 'top_speed', values: [23.0, 23.4, 23.2], unit: 'km/h' },
     { revision: 'R2', target: 'top_speed', values: [15.5, 15.6, 15.4], unit: 'mph' },
     { revision: 'R1', target: 'wheel_torque', values: [38, 39, 40], unit: 'N·m' },
     { revision: 'R2', target: 'wheel_torque', values: [31.0, 31.2, 31.4], unit: 'lbf·ft' },
   ]
-  for (const r of readings) await ok(c.post(`/api/v1/builds/${b}/readings`, r), `reading ${r.target} ${r.revision}`)
-  await ok(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R3', summary: 'Thicker motor case' }), 'R3')
+  for (const r of readings) await mustSucceed(c.post(`/api/v1/builds/${b}/readings`, r), `reading ${r.target} ${r.revision}`)
+  await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R3', summary: 'Thicker motor case' }), 'R3')
 }
-
-async function signIn(context: BrowserContext, who: SignedUp) {
-  const res = await context.request.post('/api/auth/login', { data: { email: who.email, password: who.password } })
-  expect(res.status()).toBe(200)
-}
-
-const text = async (page: Page, selector: string) => ((await page.locator(selector).first().innerText()).replace(/\s+/g, ' ').trim())
 
 describe('the build page in Chromium', () => {
   let browser: Browser
   let w: World
-  beforeAll(async () => {
-    browser = await launchBrowser()
-    w = await makeWorld()
-    await arrange(w)
-  })
+  beforeAll(async () => { ({ browser, w } = await launchWithWorld(arrange)) })
   afterAll(async () => { await browser?.close() })
 
   it('shows the strip and the matrix, takes a reading through the form and updates the strip', async () => {
-    const context = await newContext(browser)
-    await signIn(context, w.engineer)
-    const page = await context.newPage()
-    const hosts = new Set<string>()
-    page.on('request', req => hosts.add(new URL(req.url()).hostname))
-    const problems: string[] = []
-    page.on('console', (m) => { if (m.type() === 'error' || m.type() === 'warning') problems.push(m.text()) })
-    page.on('pageerror', e => problems.push(e.message))
+    const { context, page } = await signedInPage(browser, w.engineer)
+    const { hosts, problems } = watchPage(page)
     await goto(page, `/builds/${w.build.slug}`)
 
     await expect(text(page, '[data-testid="build-name"]')).resolves.toContain('Trailhopper')
@@ -163,9 +141,7 @@ describe('the build page in Chromium', () => {
   })
 
   it('is read-only for a Reviewer, who signs a revision off; dark theme', async () => {
-    const context = await newContext(browser, { colorScheme: 'dark' })
-    await signIn(context, w.reviewer)
-    const page = await context.newPage()
+    const { context, page } = await signedInPage(browser, w.reviewer, { colorScheme: 'dark' })
     await goto(page, `/builds/${w.build.slug}`)
     expect(await page.evaluate(() => document.documentElement.classList.contains('dark'))).toBe(true)
     const add = page.getByTestId('add-reading')

@@ -1,14 +1,9 @@
-import type { Browser, BrowserContext, Page } from 'playwright-core'
+import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { closeTestDb, makeWorld, testDb, type SignedUp, type World } from '../support/api'
-import { goto, launchBrowser, newContext, screenshot } from '../support/browser'
+import { closeTestDb, makeWorld, testDb, type World } from '../support/api'
+import { goto, launchBrowser, newContext, screenshot, signIn } from '../support/browser'
 import { byteSource, PNG_1x1 } from '../support/files'
 import { newRevision, newTarget } from '../support/measure'
-
-async function signIn(context: BrowserContext, who: SignedUp) {
-  const res = await context.request.post('/api/auth/login', { data: { email: who.email, password: who.password } })
-  expect(res.status()).toBe(200)
-}
 
 /** Records every value the upload progress bars take, from the page itself. */
 async function recordProgress(page: Page) {

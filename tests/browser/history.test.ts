@@ -1,7 +1,7 @@
-import type { Browser, BrowserContext, Page } from 'playwright-core'
+import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { makeWorld, type SignedUp, type World } from '../support/api'
-import { goto, launchBrowser, newContext, screenshot } from '../support/browser'
+import { mustSucceed, type World } from '../support/api'
+import { goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
 
 // The target history chart, the derived marks and the compare page, for a build made here.
 // Expected figures are worked out by hand: mean ± t(0.975, n − 1)·sd/√n, two significant digits
@@ -14,19 +14,14 @@ import { goto, launchBrowser, newContext, screenshot } from '../support/browser'
 async function arrange(w: World) {
   const c = w.owner.client
   const b = w.build.slug
-  const ok = async (p: Promise<{ status: number, body: unknown }>, what: string) => {
-    const r = await p
-    if (r.status !== 201 && r.status !== 200) throw new Error(`${what}: ${r.status} ${JSON.stringify(r.body)}`)
-    return r
-  }
-  await ok(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_torque', name: 'Continuous wheel torque', unit: 'N·m', comparator: 'atLeast', threshold: 40, stretch: 44 }), 'torque')
-  await ok(c.post(`/api/v1/builds/${b}/targets`, { key: 'top_speed', name: 'Assisted top speed', unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 }), 'speed')
-  await ok(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_speed', name: 'Wheel speed', unit: 'rpm', comparator: 'atLeast', threshold: 50 }), 'wheel speed')
-  await ok(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_power', name: 'Power at the wheel', unit: 'W', comparator: 'atLeast', threshold: 200, formula: 'wheel_torque * wheel_speed' }), 'power')
-  await ok(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R1', changes: ['spur gears'], parameters: [{ name: 'Gear ratio', value: 1 }] }), 'R1')
-  await ok(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R2', changes: ['helical gears'] }), 'R2')
-  await ok(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R3', changes: ['planetary stage'], parameters: [{ name: 'Gear ratio', value: 1.4 }] }), 'R3')
-  await ok(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R4', summary: 'not measured yet' }), 'R4')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_torque', name: 'Continuous wheel torque', unit: 'N·m', comparator: 'atLeast', threshold: 40, stretch: 44 }), 'torque')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'top_speed', name: 'Assisted top speed', unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 }), 'speed')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_speed', name: 'Wheel speed', unit: 'rpm', comparator: 'atLeast', threshold: 50 }), 'wheel speed')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_power', name: 'Power at the wheel', unit: 'W', comparator: 'atLeast', threshold: 200, formula: 'wheel_torque * wheel_speed' }), 'power')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R1', changes: ['spur gears'], parameters: [{ name: 'Gear ratio', value: 1 }] }), 'R1')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R2', changes: ['helical gears'] }), 'R2')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R3', changes: ['planetary stage'], parameters: [{ name: 'Gear ratio', value: 1.4 }] }), 'R3')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R4', summary: 'not measured yet' }), 'R4')
   const readings = [
     { revision: 'R1', target: 'wheel_torque', values: [38, 39, 40], unit: 'N·m' },
     { revision: 'R2', target: 'wheel_torque', values: [41, 42, 43], unit: 'N·m' },
@@ -36,15 +31,8 @@ async function arrange(w: World) {
     { revision: 'R1', target: 'wheel_speed', values: [60, 61, 59], unit: 'rpm' },
     { revision: 'R3', target: 'wheel_speed', values: [55, 56, 54], unit: 'rpm' },
   ]
-  for (const r of readings) await ok(c.post(`/api/v1/builds/${b}/readings`, r), `reading ${r.target} ${r.revision}`)
+  for (const r of readings) await mustSucceed(c.post(`/api/v1/builds/${b}/readings`, r), `reading ${r.target} ${r.revision}`)
 }
-
-async function signIn(context: BrowserContext, who: SignedUp) {
-  const res = await context.request.post('/api/auth/login', { data: { email: who.email, password: who.password } })
-  expect(res.status()).toBe(200)
-}
-
-const text = async (page: Page, selector: string) => ((await page.locator(selector).first().innerText()).replace(/\s+/g, ' ').trim())
 
 /** The chart's wrapper once chart.js has drawn (the attributes are read back from its instance). */
 async function drawnChart(page: Page) {
@@ -85,22 +73,12 @@ const drawnLight = (px: { light: number, alpha: number }[]) => px.some(p => p.al
 describe('history, derived targets and comparison in Chromium', () => {
   let browser: Browser
   let w: World
-  beforeAll(async () => {
-    browser = await launchBrowser()
-    w = await makeWorld()
-    await arrange(w)
-  })
+  beforeAll(async () => { ({ browser, w } = await launchWithWorld(arrange)) })
   afterAll(async () => { await browser?.close() })
 
   it('draws one point per revision with a reading, the threshold at its value, and the same numbers as a table', async () => {
-    const context = await newContext(browser)
-    await signIn(context, w.engineer)
-    const page = await context.newPage()
-    const problems: string[] = []
-    page.on('console', (m) => { if (m.type() === 'error' || m.type() === 'warning') problems.push(m.text()) })
-    page.on('pageerror', e => problems.push(e.message))
-    const hosts = new Set<string>()
-    page.on('request', req => hosts.add(new URL(req.url()).hostname))
+    const { context, page } = await signedInPage(browser, w.engineer)
+    const { hosts, problems } = watchPage(page)
 
     await goto(page, `/builds/${w.build.slug}/targets/wheel_torque`)
     const drawn = await drawnChart(page)
@@ -147,9 +125,7 @@ describe('history, derived targets and comparison in Chromium', () => {
   })
 
   it('reads the dark theme from <html>', async () => {
-    const context = await newContext(browser, { colorScheme: 'dark' })
-    await signIn(context, w.reviewer)
-    const page = await context.newPage()
+    const { context, page } = await signedInPage(browser, w.reviewer, { colorScheme: 'dark' })
     await goto(page, `/builds/${w.build.slug}/targets/wheel_torque`)
     expect(await page.evaluate(() => document.documentElement.classList.contains('dark'))).toBe(true)
     await page.waitForFunction(() => document.querySelector('[data-testid="history-chart"]')?.getAttribute('data-theme') === 'dark')
@@ -163,9 +139,7 @@ describe('history, derived targets and comparison in Chromium', () => {
   })
 
   it('the compare page shows every target\'s change from A to B, with the choice in the address', async () => {
-    const context = await newContext(browser)
-    await signIn(context, w.engineer)
-    const page = await context.newPage()
+    const { context, page } = await signedInPage(browser, w.engineer)
     await goto(page, `/builds/${w.build.slug}/compare?a=R1&b=R3`)
     await expect(text(page, '[data-testid="compare-row-wheel_torque"] [data-testid="compare-delta"]')).resolves.toBe('+6.0 N·m')
     await expect(text(page, '[data-testid="compare-row-top_speed"] [data-testid="compare-delta"]')).resolves.toBe('+1.74 km/h')

@@ -90,6 +90,13 @@ export async function signUp(overrides: { name?: string, email?: string, passwor
   return { client, user: res.body.user, email, password, team: teams.body[0] }
 }
 
+/** For arranging data: the request must succeed (200 or 201), or the error says what and why. */
+export async function mustSucceed(request: Promise<ApiResponse>, what: string): Promise<ApiResponse> {
+  const r = await request
+  if (r.status !== 201 && r.status !== 200) throw new Error(`${what}: ${r.status} ${JSON.stringify(r.body)}`)
+  return r
+}
+
 let dbInstance: Knex | undefined
 /** Direct database access, for arranging data and for checking that nothing changed. */
 export function testDb(): Knex {

@@ -1,5 +1,7 @@
 import { mkdirSync } from 'node:fs'
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
+import { expect } from 'vitest'
+import { makeWorld, type SignedUp, type World } from './api'
 import { BASE_URL, ROOT } from './env'
 
 export const ARTIFACTS = `${ROOT}tests/artifacts`
@@ -34,3 +36,37 @@ export async function screenshot(page: Page, name: string) {
   mkdirSync(ARTIFACTS, { recursive: true })
   await page.screenshot({ path: `${ARTIFACTS}/${name}.png`, fullPage: true })
 }
+
+/** Chromium and a fresh world (see `makeWorld`) with the data a test file arranges in it. */
+export async function launchWithWorld(arrange: (w: World) => Promise<void>): Promise<{ browser: Browser, w: World }> {
+  const browser = await launchBrowser()
+  const w = await makeWorld()
+  await arrange(w)
+  return { browser, w }
+}
+
+/** Signs the context in as `who` through the API, so its pages carry the session cookie. */
+export async function signIn(context: BrowserContext, who: SignedUp) {
+  const res = await context.request.post('/api/auth/login', { data: { email: who.email, password: who.password } })
+  expect(res.status()).toBe(200)
+}
+
+/** A page signed in as `who`, in a context of its own. */
+export async function signedInPage(browser: Browser, who: SignedUp, opts: { colorScheme?: 'light' | 'dark' } = {}): Promise<{ context: BrowserContext, page: Page }> {
+  const context = await newContext(browser, opts)
+  await signIn(context, who)
+  return { context, page: await context.newPage() }
+}
+
+/** What a page does besides rendering: the hosts it asks, and the errors and warnings it logs. */
+export function watchPage(page: Page): { hosts: Set<string>, problems: string[] } {
+  const hosts = new Set<string>()
+  const problems: string[] = []
+  page.on('request', req => hosts.add(new URL(req.url()).hostname))
+  page.on('console', (m) => { if (m.type() === 'error' || m.type() === 'warning') problems.push(m.text()) })
+  page.on('pageerror', e => problems.push(e.message))
+  return { hosts, problems }
+}
+
+/** The first match's text, with its white space collapsed. */
+export const text = async (page: Page, selector: string) => ((await page.locator(selector).first().innerText()).replace(/\s+/g, ' ').trim())
