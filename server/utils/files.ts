@@ -147,6 +147,9 @@ function readMultipart(event: H3Event, onFile: (stream: Readable, filename: stri
       Promise.allSettled([pending]).then(() => reject(err))
     }
     parser.on('file', (name, stream, info) => {
+      // its errors reach the caller through `pending` and `fail`; without a listener, a stream
+      // destroyed by `fail` before anyone read it would throw outside any request
+      stream.on('error', () => {})
       if (name !== 'file') {
         stream.resume()
         fail(createError({ statusCode: 400, message: `Send the file in a field named "file" (got "${name}")` }))
@@ -248,6 +251,8 @@ export async function receiveUpload(event: H3Event, access: BuildAccess): Promis
       // fields sent ahead of the file are checked before a byte is stored
       await resolveAttachment(db, access.build.id, parseOr400(UploadFields, before))
       const meter = new Meter(limit, overLimit)
+      // the store's promise carries the meter's errors (over the limit, a broken stream)
+      meter.on('error', () => {})
       stream.on('error', err => meter.destroy(err))
       stream.pipe(meter)
       written = true

@@ -186,6 +186,13 @@ describe('the board’s order under random moves', () => {
     const movers = ids.slice(1)
     const results = await Promise.all(movers.map(id => w.engineer.client.post(`/api/v1/findings/${id}/move`, { lane: 'bench', version: 1 })))
     expect(results.map(r => r.status)).toEqual(movers.map(() => 200))
+    // to the end of another lane and back, all at once, a few times: the same rank over and over
+    for (let round = 0; round < 4; round++) {
+      const now = await serverOrder(w.reviewer.client, b.slug)
+      const moved = await Promise.all(now.filter(r => movers.includes(r.id)).map(r =>
+        w.engineer.client.post(`/api/v1/findings/${r.id}/move`, { lane: round % 2 ? 'bench' : 'parked', version: r.version })))
+      expect(moved.map(r => r.status), JSON.stringify(moved.map(r => r.body.message))).toEqual(movers.map(() => 200))
+    }
     const rows = await serverOrder(w.reviewer.client, b.slug)
     expectValidRanks(rows)
     expect(rows.filter(r => r.lane === 'bench')).toHaveLength(movers.length)
