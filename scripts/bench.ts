@@ -328,7 +328,6 @@ async function rawBoard(db: Knex, buildId: string, teamId: string) {
     db.raw('SELECT id, label, seq FROM revisions WHERE build_id = ? ORDER BY seq', [buildId]),
     db.raw('SELECT revision_id, target_id, status FROM cell_stats WHERE build_id = ?', [buildId]),
     db.raw('SELECT u.id, u.name, u.email FROM memberships m JOIN users u ON u.id = m.user_id WHERE m.team_id = ? ORDER BY u.name', [teamId]),
-    db.raw('SELECT key, name, quantity FROM targets WHERE build_id = ? AND archived_at IS NULL ORDER BY position, key', [buildId]),
     db.raw('SELECT * FROM targets WHERE build_id = ?', [buildId]),
   ])
   return findings.rows.length as number
@@ -380,7 +379,6 @@ const boardSection: Section = {
     const moveTimes: number[] = []
     const retestTimes: number[] = []
     const moveDb: number[] = []
-
     const queries = new Set<number>()
     for (let i = 0; i < BOARD_MOVES; i++) {
       const toRetest = i % 5 === 4

@@ -1,13 +1,13 @@
 import type { Knex } from 'knex'
 import type { z } from 'zod'
-import type { CommentView, FindingDetail, FindingEventKind, FindingTargetInfo } from '../../shared/types/findings'
+import type { CommentView, FindingDetail, FindingEventKind } from '../../shared/types/findings'
 import { hazardOf } from '../../shared/utils/caution'
 import type { CommentBody } from '../../shared/utils/findingSchemas'
 import { verificationOf } from '../../shared/utils/lanes'
 import type { Role } from '../../shared/utils/roles'
 import type { Quantity } from '../../shared/utils/units'
 import { findMentions, renderMarkdown } from './findingMarkdown'
-import { findingSummary, fixesQuery, revisionCells, teamMembers, verificationFactsOf, type FindingRow, type FixJoinedRow } from './findings'
+import { activeTargets, buildFacts, findingSummary, fixesQuery, latestStatus, teamMembers, verificationFactsOf, type FindingRow, type FixJoinedRow } from './findings'
 
 // The finding page (description, targets, fixes, verification, comments, history) and comments.
 
@@ -56,7 +56,7 @@ export async function addComment(trx: Knex.Transaction, f: FindingRow, teamId: s
 }
 
 export async function findingDetail(db: Db, id: string, build: { id: string, slug: string, name: string, team_id: string }, role: Role): Promise<FindingDetail> {
-  const [row, targets, fixes, comments, events, revisions, members, revisionLabels, buildTargets] = await Promise.all([
+  const [row, targets, fixes, comments, events, facts, members] = await Promise.all([
     db('findings as f').leftJoin('revisions as s', 's.id', 'f.seen_on_revision_id')
       .leftJoin('users as cu', 'cu.id', 'f.created_by').leftJoin('rig_tokens as k', 'k.id', 'f.created_by_rig')
       .leftJoin('users as ou', 'ou.id', 'f.override_by')
@@ -64,18 +64,15 @@ export async function findingDetail(db: Db, id: string, build: { id: string, slu
       .first('f.*', 's.label as seen_label', 's.seq as seen_seq', 'cu.name as creator', 'k.name as creator_rig', 'ou.name as override_by_name') as Promise<FindingRow & { seen_label: string | null, seen_seq: number | null, creator: string | null, creator_rig: string | null, override_by_name: string | null }>,
     db('finding_targets as ft').join('targets as t', 't.id', 'ft.target_id').where('ft.finding_id', id)
       .orderBy([{ column: 't.position' }, { column: 't.key' }])
-      .select('t.id', 't.key', 't.name', 't.unit', 't.quantity',
-        db.raw(`(SELECT c.status FROM cell_stats c JOIN revisions r ON r.id = c.revision_id WHERE c.target_id = t.id ORDER BY r.seq DESC LIMIT 1) AS status`)) as Promise<{ id: string, key: string, name: string, unit: string, quantity: Quantity, status: FindingTargetInfo['status'] | null }[]>,
+      .select('t.id', 't.key', 't.name', 't.unit', 't.quantity') as Promise<{ id: string, key: string, name: string, unit: string, quantity: Quantity }[]>,
     fixesQuery(db).where('x.finding_id', id) as Promise<FixJoinedRow[]>,
     commentsQuery(db).where('c.finding_id', id) as Promise<CommentRow[]>,
     db('finding_events as e').leftJoin('users as u', 'u.id', 'e.actor_id').where('e.finding_id', id).orderBy('e.id', 'desc')
       .select('e.id', 'e.kind', 'e.at', 'e.detail', 'e.actor_label', 'u.name as actor_name') as Promise<{ id: number, kind: FindingEventKind, at: Date, detail: Record<string, unknown>, actor_label: string, actor_name: string | null }[]>,
-    revisionCells(db, build.id),
+    buildFacts(db, build.id),
     teamMembers(db, build.team_id),
-    db('revisions').where({ build_id: build.id }).orderBy('seq').pluck('label') as Promise<string[]>,
-    db('targets').where({ build_id: build.id }).whereNull('archived_at').orderBy([{ column: 'position' }, { column: 'key' }])
-      .select('key', 'name', 'quantity') as Promise<{ key: string, name: string, quantity: Quantity }[]>,
   ])
+  const revisions = facts.cells
   const summary = await findingSummary(db, id)
   const names = await namesOf(db, comments.flatMap(c => c.mentions))
   const verification = verificationOf(verificationFactsOf({ seq: row.seen_seq, label: row.seen_label }, targets.map(t => ({ id: t.id, key: t.key })), fixes, revisions))
@@ -88,13 +85,13 @@ export async function findingDetail(db: Db, id: string, build: { id: string, slu
     closeBlocker: verification.revision ? null : verification.reason,
     build: { id: build.id, slug: build.slug, name: build.name },
     role,
-    targetInfo: targets.map(t => ({ key: t.key, name: t.name, unit: t.unit, quantity: t.quantity, caution: hazardOf(t.quantity) !== null, status: t.status ?? 'untested' })),
+    targetInfo: targets.map(t => ({ key: t.key, name: t.name, unit: t.unit, quantity: t.quantity, caution: hazardOf(t.quantity) !== null, status: latestStatus(revisions, t.id) ?? 'untested' })),
     verification: { revision: verification.revision?.label ?? null, reason: verification.reason },
     commentList: comments.map(c => commentView(c, names)),
     history: events.map(e => ({ id: Number(e.id), kind: e.kind, at: new Date(e.at).toISOString(), actor: e.actor_name ?? e.actor_label ?? 'someone', detail: e.detail })),
     members: members.map(m => ({ id: m.id, name: m.name })),
-    revisions: revisionLabels,
-    buildTargets: buildTargets.map(t => ({ key: t.key, name: t.name, quantity: t.quantity, caution: hazardOf(t.quantity) !== null })),
+    revisions: facts.revisions.map(r => r.label),
+    buildTargets: activeTargets(facts.targets).map(t => ({ key: t.key, name: t.name, quantity: t.quantity, caution: hazardOf(t.quantity) !== null })),
     createdBy: row.creator ?? (row.creator_rig ? `rig token ${row.creator_rig}` : null),
     closedAt: row.closed_at ? new Date(row.closed_at).toISOString() : null,
     override: row.override_reason ? { reason: row.override_reason, by: row.override_by_name } : null,

@@ -8,7 +8,6 @@ import type { FindingCreate, FindingListQuery, FindingPatch, MoveBody } from '..
 import { LANES, LANE_LABELS, OPEN_LANES, OVERRIDABLE, laneRefusal, verificationOf, type CellStatus, type Lane, type Severity, type Verification, type VerificationFacts } from '../../shared/utils/lanes'
 import { RANK_SOFT_LIMIT, rankBetween, spreadRanks } from '../../shared/utils/rank'
 import { roleAtLeast, type Role } from '../../shared/utils/roles'
-import type { Quantity } from '../../shared/utils/units'
 import type { BuildAccess, BuildRow } from './auth'
 import type { auditRow } from './audit'
 import { recordEvent } from './events'
@@ -166,11 +165,20 @@ function scoped<T extends Knex.QueryBuilder>(q: T, buildId: string, o: ListOptio
 
 type RevisionCells = (VerificationFacts['revisions'][number] & { id: string })[]
 
-/**
- * The build's revisions that hold readings, with the status of each target tested there:
- * measured targets as cached, derived targets evaluated from their inputs' cells.
- */
-export async function revisionCells(db: Db, buildId: string): Promise<RevisionCells> {
+/** What the lane rules and the board read of a build: its revisions, targets and their statuses. */
+export interface BuildFacts {
+  /** every revision, oldest first */
+  revisions: { id: string, label: string, seq: number }[]
+  /** every target, archived ones too */
+  targets: TargetRow[]
+  /**
+   * The revisions that hold readings, with the status of each target tested there: measured
+   * targets as cached, derived targets evaluated from their inputs' cells.
+   */
+  cells: RevisionCells
+}
+
+export async function buildFacts(db: Db, buildId: string): Promise<BuildFacts> {
   // one after the other: `db` may be a transaction (one connection)
   const revisions = await db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq') as { id: string, label: string, seq: number }[]
   const targets = await db('targets').where({ build_id: buildId }) as TargetRow[]
@@ -188,7 +196,25 @@ export async function revisionCells(db: Db, buildId: string): Promise<RevisionCe
     const idOf = new Map(revisions.map(r => [r.label, r.id]))
     for (const t of derived) for (const h of series.get(t.id)?.history ?? []) mark(idOf.get(h.revision)!, t.id, h.status)
   }
-  return revisions.filter(r => byRevision.has(r.id)).map(r => ({ id: r.id, seq: r.seq, label: r.label, cells: byRevision.get(r.id)! }))
+  return {
+    revisions,
+    targets,
+    cells: revisions.filter(r => byRevision.has(r.id)).map(r => ({ id: r.id, seq: r.seq, label: r.label, cells: byRevision.get(r.id)! })),
+  }
+}
+
+/** The build's active targets in strip order. */
+export function activeTargets(targets: readonly TargetRow[]): TargetRow[] {
+  return targets.filter(t => !t.archived_at).sort((a, b) => a.position - b.position || (a.key < b.key ? -1 : a.key > b.key ? 1 : 0))
+}
+
+/** A target's status on the latest revision that tested it, or null. */
+export function latestStatus(cells: RevisionCells, targetId: string): CellStatus | null {
+  for (let i = cells.length - 1; i >= 0; i--) {
+    const status = cells[i]!.cells[targetId]
+    if (status) return status
+  }
+  return null
 }
 
 interface Listed {
@@ -331,16 +357,14 @@ export function verificationFactsOf(seen: { seq: number | null, label: string | 
 
 /** The board: every card with what it shows and filters on, and the choices of the filters. */
 export async function buildBoard(db: Db, build: { id: string, slug: string, name: string, team_id: string }, role: Role): Promise<BoardData> {
-  const [l, comments, revisions, allRevisions, members, targets] = await Promise.all([
+  const [l, comments, facts, members] = await Promise.all([
     listRows(db, build.id, {}, true),
     db('finding_comments as c').join('findings as f', 'f.id', 'c.finding_id').where('f.build_id', build.id)
       .groupBy('c.finding_id').select('c.finding_id', db.raw('count(*)::int AS n')) as Promise<{ finding_id: string, n: number }[]>,
-    revisionCells(db, build.id),
-    db('revisions').where({ build_id: build.id }).orderBy('seq').pluck('label') as Promise<string[]>,
+    buildFacts(db, build.id),
     teamMembers(db, build.team_id),
-    db('targets').where({ build_id: build.id }).whereNull('archived_at').orderBy([{ column: 'position' }, { column: 'key' }])
-      .select('key', 'name', 'quantity') as Promise<{ key: string, name: string, quantity: Quantity }[]>,
   ])
+  const revisions = facts.cells
   const commentCount = new Map(comments.map(c => [c.finding_id, c.n]))
   const findings: FindingCard[] = l.rows.map((r) => {
     const card = cardBase(r, l) as FindingCard
@@ -362,8 +386,8 @@ export async function buildBoard(db: Db, build: { id: string, slug: string, name
     role,
     findings,
     members: members.map(m => ({ id: m.id, name: m.name })),
-    targets: targets.map(t => ({ key: t.key, name: t.name, quantity: t.quantity, caution: hazardOf(t.quantity) !== null })),
-    revisions: allRevisions,
+    targets: activeTargets(facts.targets).map(t => ({ key: t.key, name: t.name, quantity: t.quantity, caution: hazardOf(t.quantity) !== null })),
+    revisions: facts.revisions.map(r => r.label),
   }
 }
 
@@ -506,7 +530,7 @@ export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes:
           ON c.revision_id = r.id) AS revisions`,
   [f.id, f.seen_on_revision_id, f.build_id])
   // a derived target has no cached cells: evaluate the build's (rare, and more queries)
-  const revisions = row!.targets.some(t => t.derived) ? await revisionCells(db, f.build_id) : row!.revisions
+  const revisions = row!.targets.some(t => t.derived) ? (await buildFacts(db, f.build_id)).cells : row!.revisions
   const targets = row!.targets.map(({ id, key }) => ({ id, key }))
   const facts = verificationFactsOf(row!.seen ?? { seq: null, label: null }, targets, row!.fixes, revisions)
   return { landedFixes: facts.landedIn.length, verification: verificationOf(facts), revisionIds: new Map(revisions.map(r => [r.seq, r.id])) }

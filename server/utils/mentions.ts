@@ -16,6 +16,18 @@ export async function deliverMentions(): Promise<number> {
     .whereNotExists(q => q.select(db.raw('1')).from('finding_comments as c').join('findings as f', 'f.id', 'c.finding_id').join('builds as b', 'b.id', 'f.build_id')
       .join('memberships as m', 'm.team_id', 'b.team_id').whereRaw('c.id = n.comment_id').whereRaw('m.user_id = n.user_id'))
     .update({ sent_at: db.fn.now() })
+  let settled = dropped
+  // a batch at a time, until none is left
+  for (;;) {
+    const sent = await sendBatch()
+    settled += sent
+    if (sent < BATCH) return settled
+  }
+}
+
+/** Sends up to BATCH pending mention e-mails; answers how many. */
+async function sendBatch(): Promise<number> {
+  const db = useDb()
   const pending = await db('mention_notices as n')
     .join('finding_comments as c', 'c.id', 'n.comment_id')
     .join('findings as f', 'f.id', 'c.finding_id')
@@ -46,5 +58,5 @@ export async function deliverMentions(): Promise<number> {
     })
     await db('mention_notices').where({ comment_id: n.comment_id, user_id: n.user_id }).update({ sent_at: db.fn.now() })
   }
-  return dropped + pending.length
+  return pending.length
 }

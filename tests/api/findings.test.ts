@@ -203,7 +203,10 @@ describe('findings', () => {
       expect(board.body.findings.find((c: { id: string }) => c.id === g.id)).toMatchObject({ verifiedOn: 'R3', closeBlocker: null })
       const ok = await move(w.engineer.client, g.id, { lane: 'closed', version: 1 })
       expect(ok.status, JSON.stringify(ok.body)).toBe(200)
-      expect((await w.reviewer.client.get(`/api/findings/${g.id}`)).body).toMatchObject({ lane: 'closed', verification: { revision: 'R3' }, override: null })
+      const detail = (await w.reviewer.client.get(`/api/findings/${g.id}`)).body
+      expect(detail).toMatchObject({ lane: 'closed', verification: { revision: 'R3' }, override: null })
+      // the finding's page shows the derived target's status as the board reads it
+      expect(detail.targetInfo).toEqual([expect.objectContaining({ key: 'wheel_power', status: 'met' })])
     })
 
     it('a finding that hurts no target closes on any reading after the one it was seen on', async () => {
