@@ -54,6 +54,14 @@ ensure_deps() {
   fi
 }
 
+# source_fingerprint: one hash over every file the build reads (tracked or new, not ignored),
+# tests and prose left out; empty outside a git checkout, which then always builds
+source_fingerprint() {
+  (cd "$ROOT" && git rev-parse --git-dir >/dev/null 2>&1) || return 0
+  (cd "$ROOT" && git ls-files -z --cached --others --exclude-standard -- . ':!tests' ':!*.md' ':!docs' \
+    | xargs -0 -r sha1sum 2>/dev/null | sha1sum | cut -d' ' -f1)
+}
+
 # session_secret FILE: a stable random secret kept in an ignored file
 session_secret() {
   local f="$1"

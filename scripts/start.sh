@@ -21,9 +21,17 @@ npx tsx scripts/migrate.ts latest
 npx tsx scripts/migrate.ts seed
 echo "== maildev"
 start_maildev "$SMTP_PORT" "$MAIL_WEB_PORT" "$ROOT/.data/maildev/mail"
-if [ "${RATCHET_SKIP_BUILD:-0}" != 1 ] || [ ! -f .output/server/index.mjs ]; then
+# rebuild only when the sources, the lock file or the build settings changed since the last build
+BUILD_STAMP=.output/.source-fingerprint
+fingerprint="$(source_fingerprint)"
+if [ "${RATCHET_SKIP_BUILD:-0}" = 1 ] && [ -f .output/server/index.mjs ]; then
+  echo "== RATCHET_SKIP_BUILD=1: the last build is used as it is"
+elif [ -f .output/server/index.mjs ] && [ -n "$fingerprint" ] && [ "$(cat "$BUILD_STAMP" 2>/dev/null)" = "$fingerprint" ]; then
+  echo "== the app is built from these sources already"
+else
   echo "== building the app"
   npx nuxt build >.data/build.log 2>&1 || { tail -40 .data/build.log; exit 1; }
+  [ -n "$fingerprint" ] && printf '%s\n' "$fingerprint" >"$BUILD_STAMP"
 fi
 export NUXT_SESSION_PASSWORD="${NUXT_SESSION_PASSWORD:-$(session_secret .data/session-secret)}"
 export NUXT_SESSION_COOKIE_SECURE="${NUXT_SESSION_COOKIE_SECURE:-true}"
