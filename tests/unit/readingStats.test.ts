@@ -150,8 +150,8 @@ describe('Welch two-sample t-test', () => {
   ])('Rosetta Code %s: p equals R\'s to 9 decimals; t and ν equal mathjs\'s recomputation', (_name, a, b, pR) => {
     const r = welchTest(summary(a), summary(b))
     expect(r.p).toBeCloseTo(pR, 9)
-    const va = (math.variance(a) as number) / a.length
-    const vb = (math.variance(b) as number) / b.length
+    const va = (math.variance(...a) as number) / a.length
+    const vb = (math.variance(...b) as number) / b.length
     expect(r.t).toBeCloseTo(((math.mean(a) as number) - (math.mean(b) as number)) / Math.sqrt(va + vb), 12)
     expect(r.df).toBeCloseTo((va + vb) ** 2 / (va ** 2 / (a.length - 1) + vb ** 2 / (b.length - 1)), 10)
   })
