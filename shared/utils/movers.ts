@@ -14,9 +14,9 @@ export interface PairCell {
 }
 
 /**
- * Movement from `a` to `b` (delta = b − a), by the rules of PRODUCT.md: Welch's test between the
- * two pooled sample sets when both have n ≥ 2; for a derived target |Δ| > 2·√(u₁² + u₂²); else
- * the noise band; else steady for lack of data.
+ * Movement from `a` to `b` (delta = b − a), by the rules of docs/computation.md §Movement
+ * between revisions: Welch's test between the two pooled sample sets when both have n ≥ 2; for a
+ * derived target |Δ| > 2·√(u₁² + u₂²); else the noise band; else steady for lack of data.
  */
 export function compareCells(a: PairCell, b: PairCell, rule: MovementTarget, derived = false): MovementResult {
   return derived

@@ -12,7 +12,8 @@ import { addReading, expectRefused, expectRelClose, newRevision, newTarget, snap
 // - ν_eff of E: eq. G.2b over the terms E·u_m/m and E·2u_v/v;
 // - with Type B inputs only, the 95 % interval is E ± 1.959964·u_E (normal quantile; GUM G.3.2:
 //   t for ν = ∞);
-// - a change of a derived target is real when |Δ| > 2·√(u₁² + u₂²) (PRODUCT.md).
+// - a change of a derived target is real when |Δ| > 2·√(u₁² + u₂²) (docs/computation.md
+//   §Movement between revisions, rule 1).
 // Unit definitions: 1 km/h = 1000/3600 m/s, 1 g = 0.001 kg (SI Brochure, 9th ed.).
 const Z_975 = 1.959963984540054
 

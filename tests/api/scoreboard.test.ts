@@ -2,8 +2,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Client, closeTestDb, makeWorld, type World } from '../support/api'
 import { addReading, expectRelClose, newRevision, newTarget } from '../support/measure'
 
-// Samples of the worked examples in Wikipedia, "Welch's t-test", section Examples (values from
-// memory): example 1 (A1 vs A2) gives two-sided p = 0.021, example 2 (A3 vs A4) p = 0.149.
+// Samples of the worked examples of the Wikipedia article "Welch's t-test" (section Examples), as
+// published by Rosetta Code, task "Welch's t-test", with R's two-sided p: 0.021378 for example 1
+// (A1 vs A2) and 0.148842 for example 2 (A3 vs A4); see tests/unit/readingStats.test.ts.
 const A1 = [27.5, 21.0, 19.0, 23.6, 17.0, 17.9, 16.9, 20.1, 21.9, 22.6, 23.1, 19.6, 19.0, 21.7, 21.4]
 const A2 = [27.1, 22.0, 20.8, 23.4, 23.4, 23.5, 25.8, 22.0, 24.8, 20.2, 21.9, 22.1, 22.9, 20.5, 24.4]
 const A3 = [17.2, 20.9, 22.6, 18.1, 21.7, 21.4, 23.5, 24.2, 14.7, 21.8]

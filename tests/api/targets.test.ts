@@ -170,7 +170,8 @@ describe('targets', () => {
     })
 
     it('a noise band edit re-decides the movement', async () => {
-      // one sample per revision: no Welch test, the noise band alone decides (PRODUCT.md)
+      // one sample per revision: no Welch test, the noise band alone decides
+      // (docs/computation.md §Movement between revisions, rule 3)
       const t = await newTarget(w.engineer.client, w.build.slug, { unit: 'N', comparator: 'atLeast', threshold: 5, noiseBand: 0.5 })
       const r1 = await newRevision(w.engineer.client, w.build.slug, uniqueKey('R'))
       const r2 = await newRevision(w.engineer.client, w.build.slug, uniqueKey('R'))

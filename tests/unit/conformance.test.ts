@@ -2,8 +2,9 @@ import { describe, expect, it } from 'vitest'
 import { marginOf, movementOf, statusOf, type TargetRule } from '../../shared/utils/conformance'
 import { computeStats } from '../../shared/utils/readingStats'
 
-// The rules are the ones PRODUCT.md "Computation" pins (a guarded acceptance rule in the
-// sense of ILAC-G8 and ISO 14253-1: the 95 % interval, not the mean, has to clear the limit).
+// The rules are docs/computation.md §Status and §Movement between revisions (a guarded
+// acceptance rule in the sense of ILAC-G8 and ISO 14253-1: the 95 % interval, not the mean, has
+// to clear the limit).
 // Expected values below follow from those rules by hand; the comment on each row says why.
 
 const atLeast40: TargetRule = { comparator: 'atLeast', threshold: 40 }
@@ -86,8 +87,9 @@ describe('marginOf', () => {
 })
 
 describe('movementOf', () => {
-  // Sample sets of Wikipedia "Welch's t-test", Examples (example 1: p = 0.021; example 2:
-  // p = 0.149; values from memory, also checked in readingStats.test.ts).
+  // Sample sets of the Wikipedia article "Welch's t-test", Examples (example 1: p = 0.021;
+  // example 2: p = 0.149), as published by Rosetta Code, task "Welch's t-test" (R's p 0.021378
+  // and 0.148842); readingStats.test.ts checks them to 9 decimals.
   const A1 = computeStats([27.5, 21.0, 19.0, 23.6, 17.0, 17.9, 16.9, 20.1, 21.9, 22.6, 23.1, 19.6, 19.0, 21.7, 21.4])
   const A2 = computeStats([27.1, 22.0, 20.8, 23.4, 23.4, 23.5, 25.8, 22.0, 24.8, 20.2, 21.9, 22.1, 22.9, 20.5, 24.4])
   const A3 = computeStats([17.2, 20.9, 22.6, 18.1, 21.7, 21.4, 23.5, 24.2, 14.7, 21.8])

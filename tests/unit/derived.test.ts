@@ -54,7 +54,7 @@ describe('checkFormula', () => {
   }
 
   it.each([
-    ['torque * speed', 'W'], // P = τω; the radian is the unit one in SI, so N·m·rad/s = W (from memory)
+    ['torque * speed', 'W'], // P = τω; NIST SP 811 (2008) 4.2.1, Table 3: rad = m·m⁻¹ = 1, so N·m·rad/s = N·m/s = W
     ['torque * speed', 'hp'],
     ['0.5 * mass * exit_speed^2', 'J'],
     ['0.5 * mass * exit_speed^2', 'kWh'],
@@ -145,8 +145,9 @@ describe('evaluateDerived', () => {
   })
 
   it('mixed units: mass in lb, speed in mph, energy in J and kWh, all through SI', () => {
-    // 1 lb = 0.45359237 kg and 1 mph = 1609.344 m / 3600 s = 0.44704 m/s, both exact by
-    // definition (NIST SP 811, Appendix B; values from memory). 1 kWh = 3.6e6 J.
+    // 1 lb = 0.45359237 kg and 1 mi = 1609.344 m, both exact (1959 international yard and pound
+    // agreement; the same exact values as in units.test.ts), so 1 mph = 1609.344 m / 3600 s =
+    // 0.44704 m/s; 1 kWh = 1000 W × 3600 s = 3.6e6 J. Products of the definitions, worked here.
     const mLb = 3, umLb = 0.02, vMph = 20, uvMph = 0.3
     const m = mLb * 0.45359237, um = umLb * 0.45359237
     const v = vMph * 0.44704, uv = uvMph * 0.44704
@@ -165,7 +166,8 @@ describe('evaluateDerived', () => {
   })
 
   it('torque × speed in rpm gives watts: P = τω with ω = 2π·n/60', () => {
-    // 40 N·m at 200 rpm: 40·200·2π/60 = 837.758… W (mechanical power, from memory).
+    // 40 N·m at 200 rpm: P = τω (power of a torque turning at ω, with rad = 1 as above) and
+    // ω = 200 rev/min × 2π rad/rev ÷ 60 s/min, so P = 40·200·2π/60 = 837.758… W (worked here).
     const r = evaluateDerived('torque * speed', {
       torque: { mean: 40, u: null, unit: 'N·m' },
       speed: { mean: toSI(200, 'rpm'), u: null, unit: 'rpm' },

@@ -93,7 +93,8 @@ describe('evaluateDerivedTargets', () => {
     expect(value(series![3]).cell.mean).toBeCloseTo(462, 12)
   })
 
-  it('movement between the values by |Δ| > 2·√(u₁² + u₂²) (PRODUCT.md, derived targets)', () => {
+  // docs/computation.md §Movement between revisions, rule 1 (derived targets)
+  it('movement between the values by |Δ| > 2·√(u₁² + u₂²) (derived targets)', () => {
     const { power: series } = evaluateDerivedTargets([power], measured, 4)
     const first = value(series![0])
     const last = value(series![3])

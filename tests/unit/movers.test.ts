@@ -1,8 +1,9 @@
 import { describe, expect, it } from 'vitest'
 import { compareCells, rankMovements } from '../../shared/utils/movers'
 
-// Sample sets of the worked examples in Wikipedia, "Welch's t-test", section Examples (values
-// from memory, as in conformance.test.ts): example 1 (A1 vs A2) two-sided p = 0.021.
+// Sample sets of the worked examples of the Wikipedia article "Welch's t-test" (section
+// Examples), as published by Rosetta Code, task "Welch's t-test": example 1 (A1 vs A2), R's
+// two-sided p = 0.021378 (checked to 9 decimals in readingStats.test.ts).
 const A1 = [27.5, 21.0, 19.0, 23.6, 17.0, 17.9, 16.9, 20.1, 21.9, 22.6, 23.1, 19.6, 19.0, 21.7, 21.4]
 const A2 = [27.1, 22.0, 20.8, 23.4, 23.4, 23.5, 25.8, 22.0, 24.8, 20.2, 21.9, 22.1, 22.9, 20.5, 24.4]
 
@@ -24,7 +25,7 @@ describe('compareCells', () => {
     expect(up.delta).toBeCloseTo(-down.delta, 12)
   })
 
-  it('derived: real when |Δ| > 2·√(u₁² + u₂²), never Welch (PRODUCT.md)', () => {
+  it('derived: real when |Δ| > 2·√(u₁² + u₂²), never Welch (docs/computation.md §Movement between revisions, rule 1)', () => {
     const a = { mean: 100, n: 0, sd: null, u: 3 }
     const b = { mean: 109, n: 0, sd: null, u: 4 } // 2·√(9 + 16) = 10 > 9
     expect(compareCells(a, b, { comparator: 'atLeast', threshold: 90 }, true)).toMatchObject({ movement: 'steady', real: false, reason: 'uncertainty', p: null })

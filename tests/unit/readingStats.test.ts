@@ -1,10 +1,14 @@
 import jStat from 'jstat'
+import { all, create } from 'mathjs'
 import { describe, expect, it } from 'vitest'
 import {
   MAX_SAMPLES, Z_975, computeStats, pooledStats, tQuantile, welchSatterthwaite, welchTest,
 } from '../../shared/utils/readingStats'
 import { univariate, declaredN } from '../fixtures/strd/univariate'
 import { zarr13 } from '../fixtures/strd/zarr13'
+
+/** A mathjs instance of its own: a second, independent arithmetic for the Welch examples. */
+const math = create(all!, {})
 
 /** Log relative error, the "number of correct significant digits" the StRD reports use. */
 function expectSignificantDigits(actual: number, certified: number, digits: number) {
@@ -45,11 +49,14 @@ describe('t quantile', () => {
   })
 
   it('t(0.975, ∞) is the normal quantile 1.959963984540054', () => {
-    // e-Handbook 1.3.6.7.2 last row (∞) prints 1.960. The 16-digit value is the standard
-    // normal 0.975 quantile as PRODUCT.md pins it (the digits are from memory; jstat's
-    // normal.inv agrees to 1 ulp, checked below).
+    // e-Handbook 1.3.6.7.2 last row (∞) prints 1.960. The 16-digit value is the standard normal
+    // 0.975 quantile: Wikipedia, "97.5th percentile point", gives its first 20 decimals as
+    // 1.95996 39845 40054 23552 (and Fisher's 1.959964). Z_975 lies within one unit in the last
+    // place of a double of that value (it is one ulp below the nearest double), and jstat's
+    // normal.inv agrees to 15 decimals; both checked below.
     expect(tQuantile(0.975, Infinity)).toBe(1.959963984540054)
     expect(Z_975).toBe(1.959963984540054)
+    expect(Math.abs(Z_975 - Number('1.95996398454005423552'))).toBeLessThanOrEqual(Number.EPSILON)
     expect(jStat.normal.inv(0.975, 0, 1)).toBeCloseTo(Z_975, 15)
   })
 
@@ -97,8 +104,10 @@ describe('Welch two-sample t-test', () => {
   // Boost.Math documentation, "Comparing the means of two samples with the Students-t test",
   // unequal-variances output for the car mileage data of NIST/SEMATECH e-Handbook 1.3.5.3
   // (AUTO83B.DAT: US n = 249, mean 20.14458, sd 6.41470; Japan n = 79, mean 30.48101,
-  // sd 6.10771): df = 136.87499, T = −12.94627, two-sided p = 1.571e−25.
-  // (From memory, the e-Handbook 1.3.5.3 quotes the same T = −12.94627 and ν = 136.8750.)
+  // sd 6.10771): df = 136.87499, T = −12.94627, two-sided p = 1.571e−25 (the printed output of
+  // Boost's example program students_t_two_samples.cpp, as its documentation shows it). The
+  // e-Handbook 1.3.5.3 page itself works this example with equal variances only (T = −12.62059,
+  // pooled s = 6.34260, ν = 326) and states the unequal-variance ν formula used here.
   const cars = welchTest({ n: 249, mean: 20.14458, sd: 6.41470 }, { n: 79, mean: 30.48101, sd: 6.10771 })
 
   it.each([
@@ -112,8 +121,14 @@ describe('Welch two-sample t-test', () => {
     expect(cars.p / 1.571e-25).toBeCloseTo(1, 3)
   })
 
-  // Wikipedia, "Welch's t-test", section Examples (values from memory; the p of example 1,
-  // 0.021, is also quoted by the Azure Data Explorer welch_test() documentation).
+  // The sample sets of the worked examples of the Wikipedia article "Welch's t-test" (section
+  // Examples), whose rounded t, ν and p (−2.46, 24.99, 0.021; −1.57, 9.90, 0.149) are checked
+  // below. The article itself could not be consulted here; two published pages that copy these
+  // sets from it confirm them: Rosetta Code, task "Welch's t-test", whose reference p-values
+  // (R's t.test) are 0.021378001462867 for test set 1 (A1, A2) and 0.148841696605327 for test
+  // set 2 (A3, A4), and the Azure Data Explorer reference of welch_test() ("pValue = 0.021" for
+  // A1, A2). t and ν are recomputed below with mathjs (mean, unbiased variance) from Welch's
+  // formulas, independently of readingStats.
   const A1 = [27.5, 21.0, 19.0, 23.6, 17.0, 17.9, 16.9, 20.1, 21.9, 22.6, 23.1, 19.6, 19.0, 21.7, 21.4]
   const A2 = [27.1, 22.0, 20.8, 23.4, 23.4, 23.5, 25.8, 22.0, 24.8, 20.2, 21.9, 22.1, 22.9, 20.5, 24.4]
   const A3 = [17.2, 20.9, 22.6, 18.1, 21.7, 21.4, 23.5, 24.2, 14.7, 21.8]
@@ -127,6 +142,18 @@ describe('Welch two-sample t-test', () => {
     expect(r.t).toBeCloseTo(t, 2)
     expect(r.df).toBeCloseTo(df, 2)
     expect(r.p).toBeCloseTo(p, 3)
+  })
+
+  it.each([
+    ['test set 1', A1, A2, 0.021378001462867],
+    ['test set 2', A3, A4, 0.148841696605327],
+  ])('Rosetta Code %s: p equals R\'s to 9 decimals; t and ν equal mathjs\'s recomputation', (_name, a, b, pR) => {
+    const r = welchTest(summary(a), summary(b))
+    expect(r.p).toBeCloseTo(pR, 9)
+    const va = (math.variance(...a) as number) / a.length
+    const vb = (math.variance(...b) as number) / b.length
+    expect(r.t).toBeCloseTo(((math.mean(a) as number) - (math.mean(b) as number)) / Math.sqrt(va + vb), 12)
+    expect(r.df).toBeCloseTo((va + vb) ** 2 / (va ** 2 / (a.length - 1) + vb ** 2 / (b.length - 1)), 10)
   })
 
   it('is antisymmetric in its arguments and p agrees with jstat directly', () => {
@@ -189,7 +216,7 @@ describe('Type B from resolution and Welch–Satterthwaite', () => {
   })
 })
 
-describe('edge cases pinned by PRODUCT.md', () => {
+describe('edge cases of docs/computation.md §Statistics of a reading', () => {
   it('n = 1 without resolution: no uncertainty, no interval', () => {
     expect(computeStats([4.2])).toEqual({
       n: 1, mean: 4.2, sd: null, uA: null, uB: null, u: null, nuEff: null, k: null, ci95: null,

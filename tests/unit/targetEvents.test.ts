@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { targetTransition, type TargetState } from '../../shared/utils/targetEvents'
 
-// The rules are PRODUCT.md's definition of the digest's events (no outside source: product rules).
+// The rules are docs/computation.md §Reviewer events and digests (no outside source: Ratchet's own rules).
 const s = (status: TargetState['status'], revisionId = 'R2', movement: TargetState['movement'] = null, real: boolean | null = null): TargetState =>
   ({ revisionId, status, movement, real })
 

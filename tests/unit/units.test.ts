@@ -22,7 +22,11 @@ const MILE = 1609.344 // m, exact (5280 ft)
 
 describe('SI factors', () => {
   // [unit, SI value of one unit from the exact definition, SP 811 (2008) B.8 factor as
-  // printed there (7 significant digits, or exact)]. The B.8 column is quoted from memory.
+  // printed there (7 significant digits, or exact)]. The B.8 column could not be read from a copy
+  // of SP 811 here. Its force, torque and pressure rows (lbf 4.448222, kgf 9.80665, ozf
+  // 2.780139e-1, lbf·ft 1.355818, lbf·in 1.129848e-1, ozf·in 7.061552e-3, psi 6.894757e3) match a
+  // published scrape of the B.8 table; every row is checked below to be its exact definition
+  // rounded to 7 significant digits, which is how B.8 prints a factor that is not exact.
   it.each([
     ['ft', FOOT, 3.048e-1],
     ['in', INCH, 2.54e-2],
@@ -67,6 +71,9 @@ describe('SI factors', () => {
     expectRelative(info.factor, exact, 1e-12)
     // A 7-digit table value agrees to half a unit in its last digit.
     expectRelative(info.factor, sp811, 5e-7)
+    // and is the exact value itself (B.8 prints an exact factor in full) or that value rounded
+    // to 7 significant digits
+    expect([exact, Number(exact.toPrecision(7))]).toContain(sp811)
   })
 
   it.each([
@@ -152,7 +159,7 @@ describe('spellings', () => {
 })
 
 describe('quantities', () => {
-  // Required units per PRODUCT.md "Computation".
+  // The units docs/computation.md §Units lists as accepted (each quantity at least these).
   const required: Record<Quantity, string[]> = {
     velocity: ['m/s', 'km/h', 'mph', 'ft/s'],
     mass: ['kg', 'g', 'lb', 'oz'],
