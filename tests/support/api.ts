@@ -98,8 +98,8 @@ export async function mustSucceed(request: Promise<ApiResponse>, what: string): 
 }
 
 /** Knex without the app's table types (server/db/tables.ts): tests read rows as the database has them. */
-const untypedTable = (db: Knex, tableName: string) => db(tableName)
-export type TestDb = ((tableName: string) => ReturnType<typeof untypedTable>) & Omit<Knex, never>
+const _untypedTable = (db: Knex, tableName: string) => db(tableName)
+export type TestDb = ((tableName: string) => ReturnType<typeof _untypedTable>) & Omit<Knex, never>
 
 let dbInstance: Knex | undefined
 /** Direct database access, for arranging data and for checking that nothing changed. */
