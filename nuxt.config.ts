@@ -46,7 +46,7 @@ export default defineNuxtConfig({
       maxAge: 60 * 60 * 24 * 14,
       cookie: { secure: true, sameSite: 'lax' },
     },
-    // Evidence files (server/utils/storage.ts): NUXT_FILES_DRIVER (fs | s3), NUXT_FILES_DIR,
+    // Evidence files (server/utils/files/storage.ts): NUXT_FILES_DRIVER (fs | s3), NUXT_FILES_DIR,
     // NUXT_FILES_MAX_BYTES, NUXT_FILES_TEAM_QUOTA_BYTES (0: none), NUXT_FILES_S3_ENDPOINT … .
     files: {
       driver: 'fs',

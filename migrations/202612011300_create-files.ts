@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 
-// Evidence files: the bytes live in the file store (server/utils/storage.ts) under a key the
+// Evidence files: the bytes live in the file store (server/utils/files/storage.ts) under a key the
 // server makes up; this row is written only once the bytes are stored. A team's storage use is
 // the sum of `size` over its builds' files (builds.team_id, then this table's (build_id, size)).
 //

@@ -8,9 +8,9 @@ import { performance } from 'node:perf_hooks'
 import knex, { type Knex } from 'knex'
 import { knexConfig } from '../knexfile'
 import { filesSection } from './bench-files'
-import { readingStatsColumns } from '../server/utils/readings'
-import { cellRowOf, type CellRow, type CellTarget } from '../server/utils/statsCache'
-import { decideCells, poolCell } from '../shared/utils/cellStats'
+import type { CellRow } from '../server/db/tables'
+import { cellRowOf, statsColumns, type CellTarget } from '../server/utils/measure/statsCache'
+import { cellFromStats, decideCells, poolCell } from '../shared/utils/cellStats'
 import type { Comparator } from '../shared/utils/conformance'
 import { computeStats } from '../shared/utils/readingStats'
 import { diffToSI, parseUnit, toSI } from '../shared/utils/units'
@@ -88,9 +88,9 @@ async function signIn(db: Knex): Promise<Context> {
   const { res } = await http(null, 'POST', '/api/auth/signup', { name: 'Bench Runner', email, password: 'bench-press-7731' })
   if (res.status !== 201) throw new Error(`sign-up failed: ${res.status}`)
   const cookie = res.headers.getSetCookie().map(c => c.split(';')[0]).join('; ')
-  const user = await db('users').where({ email }).first('id')
+  const user = (await db('users').where({ email }).first('id'))!
   const team = await db('teams').join('memberships', 'memberships.team_id', 'teams.id').where('memberships.user_id', user.id).first('teams.slug')
-  return { db, cookie, teamSlug: team.slug, userId: user.id }
+  return { db, cookie, teamSlug: team!.slug, userId: user.id }
 }
 
 // ---------------------------------------------------------------------------------------
@@ -169,7 +169,7 @@ async function seedBuild(ctx: Context, name: string, targets: number, revisions:
         method: 'bench',
         resolution_si: resolutionSI,
         resolution_entered: resolutionSI / entered.factor,
-        ...readingStatsColumns(computeStats(valuesSI, resolutionSI)),
+        ...statsColumns(cellFromStats(computeStats(valuesSI, resolutionSI))),
         taken_by: ctx.userId,
       })
       return poolCell([{ values: valuesSI, resolution: resolutionSI }])
@@ -357,7 +357,7 @@ const boardSection: Section = {
     const started = performance.now()
     const { build, ids } = await seedBoard(ctx, BOARD_SIZE)
     console.log(`  seeded ${ids.length} findings in ${((performance.now() - started) / 1000).toFixed(1)} s`)
-    const team = await ctx.db('builds').where({ id: build.id }).first('team_id')
+    const team = (await ctx.db('builds').where({ id: build.id }).first('team_id'))!
 
     const board = await timeRequests(ctx, `/api/builds/${build.slug}/findings`)
     const list = await timeRequests(ctx, `/api/v1/builds/${build.slug}/findings`)

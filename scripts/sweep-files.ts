@@ -4,7 +4,8 @@
 //   npx tsx scripts/sweep-files.ts [--grace-hours 24] [--dry-run]
 import knex from 'knex'
 import { knexConfig } from '../knexfile'
-import { createFileStore, filesConfigFromEnv, sweepOrphans } from '../server/utils/storage'
+import { createFileStore, filesConfigFromEnv } from '../server/utils/files/storage'
+import { sweepOrphans } from '../server/utils/files/sweep'
 
 const args = process.argv.slice(2)
 const graceAt = args.indexOf('--grace-hours')

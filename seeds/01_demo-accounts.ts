@@ -37,11 +37,11 @@ export async function seed(knex: Knex): Promise<void> {
     const ids: Record<string, string> = {}
     for (const p of people) {
       const found = await trx('users').whereRaw('lower(email) = ?', [p.email]).first('id')
-      ids[p.email] = found?.id ?? (await trx('users').insert({ ...p, password_hash: await hash.make(DEMO_PASSWORD) }).returning('id'))[0].id
+      ids[p.email] = found?.id ?? (await trx('users').insert({ ...p, password_hash: await hash.make(DEMO_PASSWORD) }).returning('id'))[0]!.id
     }
     for (const t of teams) {
-      let team = await trx('teams').where({ slug: t.slug }).first('id')
-      if (!team) [team] = await trx('teams').insert({ slug: t.slug, name: t.name, demo: true }).returning('id')
+      const team = (await trx('teams').where({ slug: t.slug }).first('id'))
+        ?? (await trx('teams').insert({ slug: t.slug, name: t.name, demo: true }).returning('id'))[0]!
       for (const [email, role] of t.members) {
         await trx('memberships').insert({ team_id: team.id, user_id: ids[email], role }).onConflict(['team_id', 'user_id']).ignore()
       }

@@ -1,9 +1,9 @@
 import { createHash, randomBytes } from 'node:crypto'
 import type { Knex } from 'knex'
 import type { Comparator } from '../shared/utils/conformance'
-import { insertReading } from '../server/utils/readings'
-import { findRevision, freezeRevision, insertRevision } from '../server/utils/revisions'
-import { insertTarget } from '../server/utils/targets'
+import { insertReading } from '../server/utils/measure/readings'
+import { findRevision, freezeRevision, insertRevision } from '../server/utils/measure/revisions'
+import { insertTarget } from '../server/utils/measure/targets'
 
 // Demo data only: invented targets, revisions and readings for the demo builds of
 // 01_demo-accounts (Northwind Mobility Lab: Trailhopper, Perch; Quarry Works: Gravel Sifter).
@@ -235,7 +235,7 @@ async function demoRigToken(trx: Knex.Transaction, buildId: string, name: string
     token_hash: createHash('sha256').update(secret).digest('hex'),
     created_by: createdBy,
   }).returning('id')
-  return row.id
+  return row!.id
 }
 
 async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<string, string | null>) {
@@ -245,7 +245,7 @@ async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<
   const added = new Set<string>()
   for (const t of demo.targets) {
     if (!(await trx('targets').where({ build_id: build.id, key: t.key }).first('id'))) {
-      await insertTarget(trx, build.id, { ...t, notes: t.notes ?? '', formula: t.formula ?? null }, owner)
+      await insertTarget(trx, { userId: owner }, { buildId: build.id, body: { ...t, notes: t.notes ?? '', formula: t.formula ?? null } })
       added.add(t.key)
     }
   }
@@ -253,7 +253,8 @@ async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<
   const record = async (r: DemoRevision, readings: DemoReading[]) => {
     for (const reading of readings) {
       const by = reading.by ?? 'engineer'
-      await insertReading(trx, build.id, {
+      const actor = by === 'rig' ? { userId: null, rigTokenId } : { userId: people[by] ?? null, rigTokenId: null }
+      await insertReading(trx, actor, { buildId: build.id, body: {
         revision: r.label,
         target: reading.target,
         values: reading.values,
@@ -261,7 +262,7 @@ async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<
         method: reading.method,
         resolution: reading.resolution,
         takenAt: `${r.builtOn}T${String(9 + r.readings.indexOf(reading)).padStart(2, '0')}:30:00Z`,
-      }, by === 'rig' ? { userId: null, rigTokenId } : { userId: people[by] ?? null, rigTokenId: null })
+      } })
     }
   }
   for (const r of demo.revisions) {

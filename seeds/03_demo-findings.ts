@@ -1,9 +1,11 @@
 import type { Knex } from 'knex'
 import type { FixState, Lane, Severity } from '../shared/utils/lanes'
 import type { Role } from '../shared/utils/roles'
-import { addComment } from '../server/utils/findingDetail'
-import { addFix } from '../server/utils/findingFixes'
-import { createFinding, lockFinding, moveFinding, type FindingActor } from '../server/utils/findings'
+import type { Actor } from '../server/utils/audit'
+import { addComment } from '../server/utils/findings/detail'
+import { createFinding, lockFinding } from '../server/utils/findings/edit'
+import { addFix } from '../server/utils/findings/fixes'
+import { moveFinding } from '../server/utils/findings/move'
 
 // Demo data only: invented findings on Trailhopper's board (02_demo-builds made its targets,
 // revisions and readings). Written through the same services as the API, so the lane rules hold:
@@ -133,21 +135,21 @@ export async function seed(knex: Knex): Promise<void> {
       if (!row) return
       people[key] = row
     }
-    const actor = (p: Person): FindingActor => ({ userId: people[p].id, rigTokenId: null, label: people[p].name, role: ROLES[p] })
+    const actor = (p: Person): Actor => ({ userId: people[p].id, rigTokenId: null, name: people[p].name, label: NAMES[p], role: ROLES[p], origin: { ip: 'seed', userAgent: '' } })
 
     for (const d of trailhopper) {
-      const created = await createFinding(trx, build.id, { title: d.title, description: d.description, severity: d.severity, seenOn: d.seenOn, targets: d.targets }, actor(d.by))
+      const created = await createFinding(trx, actor(d.by), { buildId: build.id, body: { title: d.title, description: d.description, severity: d.severity, seenOn: d.seenOn, targets: d.targets } })
       for (const fix of d.fixes ?? []) {
-        await addFix(trx, await lockFinding(trx, created.id), { description: fix.description, ownerId: people[fix.owner].id, dueOn: fix.dueOn ?? null, state: fix.state, landedIn: fix.landedIn ?? null }, actor(d.by))
+        await addFix(trx, actor(d.by), { finding: await lockFinding(trx, created.id), body: { description: fix.description, ownerId: people[fix.owner].id, dueOn: fix.dueOn ?? null, state: fix.state, landedIn: fix.landedIn ?? null } })
       }
       // along the board one lane at a time, as the team would have moved it
       const path: Lane[] = d.lane === 'parked' ? ['parked'] : (['traced', 'bench', 'retest', 'closed'] as Lane[]).slice(0, ['spotted', 'traced', 'bench', 'retest', 'closed'].indexOf(d.lane))
       for (const lane of path) {
         const f = await lockFinding(trx, created.id)
-        await moveFinding(trx, true, f, { lane, version: f.version }, actor(d.by))
+        await moveFinding(trx, actor(d.by), { finding: f, teamId: build.team_id, body: { lane, version: f.version } })
       }
       for (const c of d.comments ?? []) {
-        await addComment(trx, await lockFinding(trx, created.id), build.team_id, people[c.by].id, { body: c.body })
+        await addComment(trx, actor(c.by), { finding: await lockFinding(trx, created.id), teamId: build.team_id, body: { body: c.body } })
       }
     }
   })

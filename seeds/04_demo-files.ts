@@ -1,8 +1,8 @@
 import { readFileSync } from 'node:fs'
 import { deflateSync } from 'node:zlib'
 import type { Knex } from 'knex'
-import { storeBytes } from '../server/utils/files'
-import { createFileStore, filesConfigFromEnv } from '../server/utils/storage'
+import { storeBytes } from '../server/utils/files/uploads'
+import { createFileStore, filesConfigFromEnv } from '../server/utils/files/storage'
 
 // Demo data only: evidence files on Trailhopper (02_demo-builds made its readings, 03 its
 // findings). The photos are drawn here, the CSV is the instrument log behind R5's case

@@ -2,6 +2,11 @@ import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
 import type { Role } from '#shared/utils/roles'
 import { ROLE_LABELS, roleAtLeast } from '#shared/utils/roles'
+import type { BuildRow, FileRow, FindingRow } from '../db/tables'
+import type { Actor } from './audit'
+
+// Authentication and authorization for handlers: who is signed in, their role in a team or a
+// build (with the Actor that domain functions take), rig tokens, and the sign-in throttle.
 
 export interface SessionUser { id: string, name: string, email: string }
 
@@ -36,6 +41,13 @@ export interface TeamAccess {
   user: SessionUser
   team: { id: string, name: string, slug: string, personal: boolean, demo: boolean }
   role: Role
+  /** the caller, for domain functions */
+  actor: Actor
+}
+
+/** A signed-in person as an Actor with `role`. */
+export function userActor(event: H3Event, user: SessionUser, role: Role | null): Actor {
+  return { userId: user.id, rigTokenId: null, name: user.name, label: user.email, role, origin: originOf(event) }
 }
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i
@@ -65,16 +77,7 @@ export async function requireTeamRole(event: H3Event, teamKey: string, min: Role
   if (!row) throw createError({ statusCode: 404, message: 'Team not found' })
   if (!roleAtLeast(row.role, min)) refuse(row.role, min)
   const { role, ...team } = row
-  return { user, team, role }
-}
-
-export interface BuildRow {
-  id: string
-  team_id: string
-  name: string
-  slug: string
-  summary: string
-  archived_at: Date | null
+  return { user, team, role, actor: userActor(event, user, role) }
 }
 
 export interface BuildAccess {
@@ -86,6 +89,8 @@ export interface BuildAccess {
   /** who acted, for records: the user's id, or null for a rig */
   actorId: string | null
   actorLabel: string
+  /** the caller, for domain functions */
+  actor: Actor
 }
 
 /**
@@ -100,7 +105,9 @@ export async function requireBuildRole(event: H3Event, buildKey: string, min: Ro
     const build = await byIdOrSlug(db('builds').where('builds.id', token.build_id), 'builds', buildKey).first()
     if (!build) throw createError({ statusCode: 404, message: 'Build not found' })
     if (!roleAtLeast('engineer', min)) refuse('engineer', min)
-    return { build, role: 'engineer', user: null, rigTokenId: token.id, actorId: null, actorLabel: `rig token ${token.name}` }
+    const label = `rig token ${token.name}`
+    const actor: Actor = { userId: null, rigTokenId: token.id, name: label, label, role: 'engineer', origin: originOf(event) }
+    return { build, role: 'engineer', user: null, rigTokenId: token.id, actorId: null, actorLabel: label, actor }
   }
   const user = await requireUser(event)
   const row = await byIdOrSlug(db('builds')
@@ -110,7 +117,7 @@ export async function requireBuildRole(event: H3Event, buildKey: string, min: Ro
   if (!row) throw createError({ statusCode: 404, message: 'Build not found' })
   const { member_role: role, ...build } = row
   if (!roleAtLeast(role, min)) refuse(role, min)
-  return { build, role, user, rigTokenId: null, actorId: user.id, actorLabel: user.email }
+  return { build, role, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role) }
 }
 
 export function bearerToken(event: H3Event): string | null {
@@ -130,7 +137,7 @@ export async function useRigToken(event: H3Event, token: string) {
     .first('id', 'build_id', 'name')
   if (!row) throw createError({ statusCode: 401, message: 'The rig token is unknown, expired or revoked' })
   await db('rig_tokens').where({ id: row.id }).update({ last_used_at: db.fn.now(), last_used_ip: clientIp(event) })
-  return row as { id: string, build_id: string, name: string }
+  return row
 }
 
 /** Starts a fresh session for the user (a new cookie: the old one is replaced). */
@@ -140,4 +147,74 @@ export async function startSession(event: H3Event, user: { id: string, name: str
     sessionVersion: user.session_version,
     loggedInAt: Date.now(),
   })
+}
+
+/** Routes that act on a team or many builds don't take a rig token: it belongs to one build. */
+export function refuseRigToken(event: H3Event) {
+  if (bearerToken(event)) {
+    throw createError({ statusCode: 403, message: 'A rig token acts on its own build only; use its build routes' })
+  }
+}
+
+/** 429 with Retry-After while the sign-in throttle (access/throttle.ts) holds the address or IP. */
+export async function assertNotThrottled(event: H3Event, email: string, ip: string) {
+  const retry = await signInWait(useDb(), email, ip)
+  if (retry !== null) {
+    setResponseHeader(event, 'Retry-After', retry)
+    throw createError({ statusCode: 429, message: `Too many failed sign-ins; try again in ${Math.ceil(retry / 60)} min` })
+  }
+}
+
+export interface FindingAccess extends BuildAccess {
+  findingId: string
+  /** the finding as it was when the request came in (writes lock it, or check its version as they write) */
+  finding: FindingRow
+}
+
+/**
+ * The caller's access to a finding's build. Signed-out callers get a 401 before anything is looked
+ * up; a finding outside the caller's teams is a 404; a role too low a 403 (requireBuildRole's).
+ */
+export async function requireFindingRole(event: H3Event, min: Role, opts: { allowRigToken?: boolean } = {}): Promise<FindingAccess> {
+  const id = uuidParam(event, 'id')
+  const db = useDb()
+  if (opts.allowRigToken && bearerToken(event)) {
+    const finding = await db('findings').where({ id }).first()
+    if (!finding) throw createError({ statusCode: 404, message: 'Finding not found' })
+    return { ...await requireBuildRole(event, finding.build_id, min, opts), findingId: id, finding }
+  }
+  // the session's check, and the finding with its build and the caller's role there, side by side
+  const session = await getUserSession(event)
+  const [user, row] = await Promise.all([
+    requireUser(event),
+    session.user
+      ? prepared<FindingRow & { build: BuildRow, member_role: Role | null }>(db, `
+          SELECT f.*, to_jsonb(b) AS build, m.role AS member_role FROM findings f JOIN builds b ON b.id = f.build_id
+          LEFT JOIN memberships m ON m.team_id = b.team_id AND m.user_id = $1 WHERE f.id = $2`, [session.user.id, id]).then(rows => rows[0])
+      : null,
+  ])
+  if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
+  const { build, member_role: role, ...finding } = row
+  // outside the team or below the role: the usual 404 or 403, worded by requireBuildRole
+  if (!roleAtLeast(role, min)) return { ...await requireBuildRole(event, build.id, min), findingId: id, finding }
+  return { build, role: role!, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role!), findingId: id, finding }
+}
+
+/**
+ * A file and the caller's access to its build, for reading it. The caller is authenticated
+ * before the file is looked up, and a file outside their teams is a 404 like a missing one.
+ */
+export async function fileForReader(event: H3Event, id: string, opts: { allowRigToken: boolean }): Promise<{ file: FileRow, access: BuildAccess }> {
+  const bearer = opts.allowRigToken ? bearerToken(event) : null
+  if (bearer) await useRigToken(event, bearer)
+  else await requireUser(event)
+  const file = await useDb()('files').where({ id }).first()
+  const notFound = () => createError({ statusCode: 404, message: 'File not found' })
+  if (!file) throw notFound()
+  try {
+    return { file, access: await requireBuildRole(event, file.build_id, 'reviewer', opts) }
+  }
+  catch (err) {
+    throw (err as { statusCode?: number })?.statusCode === 404 ? notFound() : err
+  }
 }

@@ -1,6 +1,7 @@
 import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
 import type pg from 'pg'
+import type { Db } from './db'
 
 // Named prepared statements for the hottest queries (a move on the board). PostgreSQL parses a
 // named statement once per connection and, after a few runs, keeps its plan; an unnamed one, as
@@ -23,7 +24,7 @@ function nameOf(text: string) {
  * Runs `text` (placeholders `$1`, `$2` …) as a named prepared statement on `db`'s connection:
  * the pool's, or the transaction's when `db` is one.
  */
-export async function prepared<R>(db: Knex | Knex.Transaction, text: string, values: unknown[]): Promise<R[]> {
+export async function prepared<R>(db: Db, text: string, values: unknown[]): Promise<R[]> {
   const client = db.client as Knex.Client & { acquireConnection(): Promise<pg.PoolClient>, releaseConnection(c: pg.PoolClient): Promise<void> }
   const query = { __knexQueryUid: randomUUID(), sql: text, bindings: values, method: 'raw' }
   const connection = await client.acquireConnection()

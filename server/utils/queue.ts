@@ -11,7 +11,7 @@ export const QUEUES = {
   deliver: 'ratchet-deliver',
   /** one digest e-mail: { userId, buildId, period } */
   digest: 'ratchet-digest',
-  /** the e-mails to people mentioned in comments (server/utils/mentions.ts) */
+  /** the e-mails to people mentioned in comments (server/utils/findings/mentions.ts) */
   mentions: 'ratchet-mentions',
   /** cron: queue the daily / weekly digests */
   daily: 'ratchet-digest-daily',

@@ -3,8 +3,9 @@ import { existsSync, mkdirSync, statSync, utimesSync, writeFileSync } from 'node
 import { request } from 'node:http'
 import { dirname, join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { createFileStore, sweepOrphans } from '../../server/utils/storage'
-import { Client, closeTestDb, makeWorld, signUp, addMember, testDb, type World } from '../support/api'
+import { createFileStore } from '../../server/utils/files/storage'
+import { sweepOrphans } from '../../server/utils/files/sweep'
+import { Client, closeTestDb, makeWorld, signUp, addMember, testDb, testKnex, type World } from '../support/api'
 import { BASE_URL } from '../support/env'
 import { FILES_DIR, PNG_1x1, byteSource, storedFiles, streamDownload, streamUpload, upload, uploadForm, uploadOk } from '../support/files'
 import { addReading, newRevision, newTarget } from '../support/measure'
@@ -58,7 +59,7 @@ describe('evidence files', () => {
   beforeAll(async () => {
     w = await makeWorld()
     // bytes left by earlier runs (their rows went with the reset database)
-    await sweepOrphans(testDb(), createFileStore({ driver: 'fs', dir: FILES_DIR }), { graceMs: 0 })
+    await sweepOrphans(testKnex(), createFileStore({ driver: 'fs', dir: FILES_DIR }), { graceMs: 0 })
   })
   afterAll(closeTestDb)
 
@@ -492,11 +493,11 @@ describe('evidence files', () => {
     const keptKey = (await testDb()('files').where({ id: kept.id }).first()).storage_key
     utimesSync(join(FILES_DIR, keptKey), old, old)
 
-    const dry = await sweepOrphans(testDb(), store, { graceMs: 3600_000, dryRun: true })
+    const dry = await sweepOrphans(testKnex(), store, { graceMs: 3600_000, dryRun: true })
     expect(dry.removed).toContain(oldOrphan)
     expect(existsSync(join(FILES_DIR, oldOrphan))).toBe(true)
 
-    const result = await sweepOrphans(testDb(), store, { graceMs: 3600_000 })
+    const result = await sweepOrphans(testKnex(), store, { graceMs: 3600_000 })
     expect(result.removed).toEqual([oldOrphan])
     expect(existsSync(join(FILES_DIR, oldOrphan))).toBe(false)
     expect(existsSync(join(FILES_DIR, youngOrphan))).toBe(true)

@@ -97,11 +97,21 @@ export async function mustSucceed(request: Promise<ApiResponse>, what: string): 
   return r
 }
 
+/** Knex without the app's table types (server/db/tables.ts): tests read rows as the database has them. */
+const _untypedTable = (db: Knex, tableName: string) => db(tableName)
+export type TestDb = ((tableName: string) => ReturnType<typeof _untypedTable>) & Omit<Knex, never>
+
 let dbInstance: Knex | undefined
 /** Direct database access, for arranging data and for checking that nothing changed. */
-export function testDb(): Knex {
+export function testDb(): TestDb {
   dbInstance ??= knex({ client: 'pg', connection: DATABASE_URL, pool: { min: 0, max: 4 } })
-  return dbInstance
+  return dbInstance as TestDb
+}
+
+/** The same connection with the app's table types, for calling server code (the sweep). */
+export function testKnex(): Knex {
+  testDb()
+  return dbInstance!
 }
 
 export async function closeTestDb() {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { findMentions, renderMarkdown } from '../../server/utils/findingMarkdown'
+import { findMentions, renderMarkdown } from '../../server/utils/findings/markdown'
 
 // Markdown of descriptions and comments goes through a strict allow-list: formatting stays,
 // anything that could run (script, event handlers, javascript: links, frames, styles) goes.

@@ -4,7 +4,7 @@ import type { AddressInfo } from 'node:net'
 import { Readable } from 'node:stream'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { S3Store } from '../../server/utils/s3'
-import { createFileStore } from '../../server/utils/storage'
+import { createFileStore } from '../../server/utils/files/storage'
 
 // The S3 store against a small in-process stand-in for an S3-compatible service: it keeps
 // objects and multipart uploads in memory, answers the XML S3 answers, and refuses a request

@@ -12,9 +12,9 @@ export default defineEventHandler(async (event) => {
     await trx('password_resets').where({ id: reset.id }).update({ used_at: trx.fn.now() })
     // every other open reset link of this user dies with it
     await trx('password_resets').where({ user_id: reset.user_id }).whereNull('used_at').update({ used_at: trx.fn.now() })
-    const [user] = await trx('users').where({ id: reset.user_id })
+    const user = theRow(await trx('users').where({ id: reset.user_id })
       .update({ password_hash: passwordHash, session_version: trx.raw('session_version + 1'), updated_at: trx.fn.now() })
-      .returning(['id', 'name', 'email', 'session_version'])
+      .returning(['id', 'name', 'email', 'session_version']))
     await audit(event, { action: 'auth.password-reset', actorId: user.id, actorLabel: user.email }, trx)
     return user
   })

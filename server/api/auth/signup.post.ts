@@ -7,11 +7,11 @@ export default defineEventHandler(async (event) => {
   const user = await db.transaction(async (trx) => {
     const taken = await trx('users').whereRaw('lower(email) = ?', [body.email]).first('id')
     if (taken) throw createError({ statusCode: 409, message: 'An account with this e-mail address exists; sign in instead', data: { fields: { email: 'Already registered' } } })
-    const [user] = await trx('users').insert({ email: body.email, name: body.name, password_hash: passwordHash })
-      .returning(['id', 'name', 'email', 'session_version'])
+    const user = theRow(await trx('users').insert({ email: body.email, name: body.name, password_hash: passwordHash })
+      .returning(['id', 'name', 'email', 'session_version']))
     await createTeam(trx, { name: `${body.name}'s team`, ownerId: user.id, personal: true })
     await audit(event, { action: 'user.signed-up', actorId: user.id, actorLabel: user.email }, trx)
-    if (body.invitation) await acceptInvitation(event, trx, body.invitation, user)
+    if (body.invitation) await acceptInvitation(trx, userActor(event, user, null), { token: body.invitation, email: user.email })
     return user
   })
 

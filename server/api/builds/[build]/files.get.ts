@@ -4,5 +4,5 @@ import { FileListQuery } from '#shared/utils/fileSchemas'
 export default defineEventHandler(async (event): Promise<FileList> => {
   const access = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
   const query = queryAs(event, FileListQuery)
-  return await listFiles(useDb(), access, query)
+  return await listFiles(useDb(), access.actor, { buildId: access.build.id, query })
 })

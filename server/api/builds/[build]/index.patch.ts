@@ -7,8 +7,8 @@ export default defineEventHandler(async (event) => {
     if (body.summary !== undefined) changes.summary = body.summary
     if (body.archived === true && !build.archived_at) changes.archived_at = trx.fn.now()
     if (body.archived === false) changes.archived_at = null
-    const [row] = await trx('builds').where({ id: build.id }).update(changes)
-      .returning(['id', 'name', 'slug', 'summary', 'archived_at', 'created_at'])
+    const row = theRow(await trx('builds').where({ id: build.id }).update(changes)
+      .returning(['id', 'name', 'slug', 'summary', 'archived_at', 'created_at']))
     const action = body.archived === true && !build.archived_at ? 'build.archived' : body.archived === false && build.archived_at ? 'build.restored' : 'build.updated'
     await audit(event, { action, teamId: build.team_id, actorId: user!.id, actorLabel: user!.email, detail: { build: build.slug, fields: Object.keys(body) } }, trx)
     return row

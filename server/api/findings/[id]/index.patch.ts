@@ -3,6 +3,6 @@ export default defineEventHandler(async (event) => {
   const patch = await bodyAs(event, FindingPatch)
   return await useDb().transaction(async (trx) => {
     const finding = await lockFinding(trx, access.findingId)
-    return await editFinding(trx, finding, patch, findingActor(access))
+    return await editFinding(trx, access.actor, { finding, patch })
   })
 })

@@ -1,7 +1,8 @@
 export default defineEventHandler(async (event) => {
   refuseRigToken(event)
   const body = await bodyAs(event, BuildBody)
-  const build = await createBuild(event, body)
+  const { team, actor } = await requireTeamRole(event, body.team, 'engineer')
+  const build = await createBuild(useDb(), actor, { team, body })
   setResponseStatus(event, 201)
   return build
 })

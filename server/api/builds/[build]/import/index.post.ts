@@ -5,7 +5,7 @@ import { CsvImportBody } from '#shared/utils/fileSchemas'
 export default defineEventHandler(async (event): Promise<CsvImported> => {
   const access = await requireBuildRole(event, getRouterParam(event, 'build')!, 'engineer')
   const body = await bodyAs(event, CsvImportBody)
-  const imported = await importCsv(event, access, body)
+  const imported = await importCsv(useDb(), access.actor, { build: access.build, body })
   setResponseStatus(event, 201)
   return imported
 })

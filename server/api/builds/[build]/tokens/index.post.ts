@@ -14,7 +14,7 @@ export default defineEventHandler(async (event) => {
       created_by: user!.id,
       expires_at: body.expiresAt ?? null,
     }).returning(['id', 'name', 'prefix', 'expires_at as expiresAt', 'created_at as createdAt'])
-    await audit(event, { action: 'rig-token.created', teamId: build.team_id, actorId: user!.id, actorLabel: user!.email, detail: { build: build.slug, name: body.name, prefix: row.prefix } }, trx)
+    await audit(event, { action: 'rig-token.created', teamId: build.team_id, actorId: user!.id, actorLabel: user!.email, detail: { build: build.slug, name: body.name, prefix: token.slice(0, 10) } }, trx)
     return row
   })
   setResponseStatus(event, 201)

@@ -4,6 +4,6 @@ export default defineEventHandler(async (event) => {
   const patch = await bodyAs(event, FixPatch)
   return await useDb().transaction(async (trx) => {
     const finding = await lockFinding(trx, access.findingId)
-    return await editFix(trx, finding, fixId, patch, findingActor(access))
+    return await editFix(trx, access.actor, { finding, fixId, patch })
   })
 })

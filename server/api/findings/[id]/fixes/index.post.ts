@@ -3,7 +3,7 @@ export default defineEventHandler(async (event) => {
   const body = await bodyAs(event, FixBody)
   const fix = await useDb().transaction(async (trx) => {
     const finding = await lockFinding(trx, access.findingId)
-    return await addFix(trx, finding, body, findingActor(access))
+    return await addFix(trx, access.actor, { finding, body })
   })
   setResponseStatus(event, 201)
   return fix

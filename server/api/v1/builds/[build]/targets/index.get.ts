@@ -9,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const { archived } = queryAs(event, Query)
   const q = useDb()('targets').where({ build_id: build.id }).orderBy([{ column: 'position' }, { column: 'key' }])
   if (archived !== '1') q.whereNull('archived_at')
-  return (await q as TargetRow[]).map(targetView)
+  return (await q).map(targetView)
 })

@@ -1,15 +1,15 @@
-import type { BudgetTerm, CantEvaluate, HistoryEntry } from '../../shared/types/api'
-import { cellInUnit } from '../../shared/utils/cellStats'
-import { evaluateDerivedTargets, type DerivedPoint, type DerivedSpec, type InputCell, type MeasuredSeries } from '../../shared/utils/derivedCells'
-import { diffFromSI, fromSI, parseUnit, type UnitInfo } from '../../shared/utils/units'
-import { historyEntryOf, type CellRow } from './statsCache'
-import type { TargetRow } from './targets'
+import type { BudgetTerm, CantEvaluate, HistoryEntry } from '../../../shared/types/api'
+import { cellInUnit } from '../../../shared/utils/cellStats'
+import { evaluateDerivedTargets, type DerivedPoint, type DerivedSpec, type InputCell, type MeasuredSeries } from '../../../shared/utils/derivedCells'
+import { diffFromSI, fromSI, parseUnit, type UnitInfo } from '../../../shared/utils/units'
+import type { CellRow, TargetRow } from '../../db/tables'
+import { historyEntryOf } from './statsCache'
 
 // Every target's history across the build's revisions, from the cells the caller has already
 // loaded: measured targets as cached in cell_stats, derived targets evaluated in memory from
 // their inputs' cells (no query of their own, so a page's query count doesn't grow with them).
 // Plain imports: the seed and the benchmark use this outside the server.
-// (derivedEvents.ts uses it for the derived targets' digest events.)
+// (targetEvents.ts uses it for the derived targets' digest events.)
 
 export interface TargetSeries {
   /** one entry per revision with a value, oldest first */

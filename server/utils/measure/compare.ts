@@ -1,16 +1,14 @@
-import type { Knex } from 'knex'
-import type { CantEvaluate, ComparedTarget, CompareSide, Comparison, FixLanded, HistoryEntry, Mover, ParameterDiff, RevisionView, TargetView } from '../../shared/types/api'
-import { compareCells, rankMovements } from '../../shared/utils/movers'
+import type { CantEvaluate, ComparedTarget, CompareSide, Comparison, FixLanded, HistoryEntry, Mover, ParameterDiff, RevisionView, TargetView } from '../../../shared/types/api'
+import { compareCells, rankMovements } from '../../../shared/utils/movers'
 import { findRevision, listRevisions } from './revisions'
 import { seriesOf, type TargetSeries } from './history'
-import type { CellRow } from './statsCache'
-import { targetView, type TargetRow } from './targets'
+import type { CellRow, TargetRow } from '../../db/tables'
+import type { Db } from '../db'
+import { targetView } from './targets'
 
 // Which revision moved which number: two revisions compared target by target (any A and B, or a
 // revision against its parent), the revisions ranked by how they moved one target, and the fixes
 // that landed in them. Plain Knex with the connection passed in.
-
-type Db = Knex | Knex.Transaction
 
 /** Everything the comparisons need of a build, in three queries. */
 export interface BuildState {
@@ -22,9 +20,9 @@ export interface BuildState {
 
 export async function loadBuildState(db: Db, buildId: string): Promise<BuildState> {
   const [targets, revisions, cells] = await Promise.all([
-    db('targets').where({ build_id: buildId }).orderBy([{ column: 'position' }, { column: 'key' }]) as Promise<TargetRow[]>,
+    db('targets').where({ build_id: buildId }).orderBy([{ column: 'position' }, { column: 'key' }]),
     listRevisions(db, buildId),
-    db('cell_stats').where({ build_id: buildId }) as Promise<CellRow[]>,
+    db('cell_stats').where({ build_id: buildId }),
   ])
   return { targets, revisions, cells, series: seriesOf(targets, revisions, cells) }
 }

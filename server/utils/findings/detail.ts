@@ -1,17 +1,18 @@
 import type { Knex } from 'knex'
 import type { z } from 'zod'
-import type { CommentView, FindingDetail, FindingEventKind } from '../../shared/types/findings'
-import { hazardOf } from '../../shared/utils/caution'
-import type { CommentBody } from '../../shared/utils/findingSchemas'
-import { verificationOf } from '../../shared/utils/lanes'
-import type { Role } from '../../shared/utils/roles'
-import type { Quantity } from '../../shared/utils/units'
-import { findMentions, renderMarkdown } from './findingMarkdown'
-import { activeTargets, buildFacts, findingSummary, fixesQuery, latestStatus, teamMembers, verificationFactsOf, type FindingRow, type FixJoinedRow } from './findings'
+import type { CommentView, FindingDetail, FindingEventKind } from '../../../shared/types/findings'
+import { hazardOf } from '../../../shared/utils/caution'
+import type { CommentBody } from '../../../shared/utils/findingSchemas'
+import { verificationOf } from '../../../shared/utils/lanes'
+import type { Role } from '../../../shared/utils/roles'
+import type { Quantity } from '../../../shared/utils/units'
+import { findMentions, renderMarkdown } from './markdown'
+import type { FindingRow } from '../../db/tables'
+import type { Actor } from '../audit'
+import type { Db } from '../db'
+import { activeTargets, buildFacts, findingSummary, fixesQuery, latestStatus, teamMembers, verificationFactsOf, type FixJoinedRow } from './board'
 
 // The finding page (description, targets, fixes, verification, comments, history) and comments.
-
-type Db = Knex | Knex.Transaction
 
 interface CommentRow {
   id: string
@@ -39,16 +40,19 @@ const commentsQuery = (db: Db) => db('finding_comments as c').leftJoin('users as
 /** Names of the given users (mentioned people may have left the team since). */
 async function namesOf(db: Db, ids: string[]): Promise<Map<string, string>> {
   if (!ids.length) return new Map()
-  const rows = await db('users').whereIn('id', [...new Set(ids)]).select('id', 'name') as { id: string, name: string }[]
+  const rows = await db('users').whereIn('id', [...new Set(ids)]).select('id', 'name')
   return new Map(rows.map(r => [r.id, r.name]))
 }
 
 /** A comment by a member; "@name" mentions are matched against the team as it is now. */
-export async function addComment(trx: Knex.Transaction, f: FindingRow, teamId: string, authorId: string, body: z.output<typeof CommentBody>): Promise<CommentView> {
+export async function addComment(trx: Knex.Transaction, actor: Actor, input: { finding: FindingRow, teamId: string, body: z.output<typeof CommentBody> }): Promise<CommentView> {
+  const { finding: f, teamId } = input
+  const body = input.body
+  const authorId = actor.userId!
   const members = await teamMembers(trx, teamId)
   const mentions = findMentions(body.body, members)
-  const [row] = await trx('finding_comments').insert({ finding_id: f.id, author_id: authorId, body: body.body, mentions }).returning('id') as { id: string }[]
-  // the people to e-mail (server/utils/mentions.ts), not the author
+  const [row] = await trx('finding_comments').insert({ finding_id: f.id, author_id: authorId, body: body.body, mentions }).returning('id')
+  // the people to e-mail (mentions.ts), not the author
   const notify = mentions.filter(id => id !== authorId)
   if (notify.length) await trx('mention_notices').insert(notify.map(id => ({ comment_id: row!.id, user_id: id })))
   const saved = await commentsQuery(trx).where('c.id', row!.id).first() as CommentRow

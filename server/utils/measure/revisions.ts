@@ -1,33 +1,17 @@
 import { createError } from 'h3'
 import type { Knex } from 'knex'
 import type { z } from 'zod'
-import type { RevisionBrief, RevisionView } from '../../shared/types/api'
-import type { ParameterField, RevisionBody, RevisionPatch } from '../../shared/utils/revisionSchemas'
-import { parseUnit } from '../../shared/utils/units'
-import { recordEvent } from './events'
+import type { RevisionBrief, RevisionView } from '../../../shared/types/api'
+import type { ParameterField, RevisionBody, RevisionPatch } from '../../../shared/utils/revisionSchemas'
+import { parseUnit } from '../../../shared/utils/units'
+import type { RevisionRow } from '../../db/tables'
+import type { Db } from '../db'
+import { recordEvent } from '../notify/events'
 
 // Revisions of a build. Plain Knex with the connection passed in (the seed uses it too).
 // A frozen (signed-off) revision and its readings are read-only until an Owner reopens it.
 
-type Db = Knex | Knex.Transaction
-
 const REVISION_LABEL = /^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$/
-
-export interface RevisionRow {
-  id: string
-  build_id: string
-  label: string
-  seq: number
-  parent_id: string | null
-  built_on: string | null
-  summary: string
-  changes: string[]
-  parameters: { name: string, value: number | string, unit: string | null }[]
-  frozen_at: Date | null
-  frozen_by: string | null
-  created_at: Date
-  updated_at: Date
-}
 
 function notFound(label: string, field = 'revision') {
   return createError({ statusCode: 404, message: `Revision "${label}" not found in this build`, data: { fields: { [field]: 'Not found in this build' } } })
@@ -38,7 +22,7 @@ export async function findRevision(db: Db, buildId: string, label: string, lock?
   const wanted = String(label).trim()
   const q = db('revisions').where({ build_id: buildId }).whereRaw('lower(label) = lower(?)', [wanted]).first()
   // a label that can't exist is not looked up (nor is text PostgreSQL would refuse)
-  const row = REVISION_LABEL.test(wanted) ? (await (lock === 'update' ? q.forUpdate() : lock === 'share' ? q.forShare() : q)) as RevisionRow | undefined : undefined
+  const row = REVISION_LABEL.test(wanted) ? await (lock === 'update' ? q.forUpdate() : lock === 'share' ? q.forShare() : q) : undefined
   if (!row) throw notFound(label)
   return row
 }
@@ -92,7 +76,7 @@ export async function insertRevision(trx: Knex.Transaction, buildId: string, bod
   let parent: RevisionRow | null = null
   if (body.parent) parent = await findRevision(trx, buildId, body.parent).catch(() => { throw notFound(body.parent!, 'parent') })
   else if (body.parent === undefined) parent = (await trx('revisions').where({ build_id: buildId }).orderBy('seq', 'desc').first()) ?? null
-  const { max } = (await trx('revisions').where({ build_id: buildId }).max('seq as max').first()) as { max: number | null }
+  const max: number | null = (await trx('revisions').where({ build_id: buildId }).max({ max: 'seq' }).first())?.max ?? null
   const [row] = await trx('revisions').insert({
     build_id: buildId,
     label: body.label,
@@ -103,7 +87,7 @@ export async function insertRevision(trx: Knex.Transaction, buildId: string, bod
     changes: JSON.stringify(body.changes ?? []),
     parameters: JSON.stringify(normalizeParameters(body.parameters)),
     created_by: createdBy,
-  }).returning('*') as RevisionRow[]
+  }).returning('*')
   return { ...revisionBrief(row!, parent?.label ?? null), changes: row!.changes, parameters: row!.parameters, frozenBy: null, readings: 0, targetsTested: 0, createdAt: new Date(row!.created_at).toISOString() }
 }
 

@@ -1,16 +1,17 @@
 import { Readable } from 'node:stream'
-import { createError, type H3Event } from 'h3'
+import { createError } from 'h3'
 import type { Knex } from 'knex'
 import Papa from 'papaparse'
 import type { z } from 'zod'
-import type { CsvImported, CsvPreview } from '../../shared/types/files'
-import { kindOf } from '../../shared/utils/contentTypes'
-import { parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvProblem, type CsvRow } from '../../shared/utils/csvReadings'
-import { formatBytes } from '../../shared/utils/fileNames'
-import type { CsvImportBody } from '../../shared/utils/fileSchemas'
-import { SI_UNIT, diffFromSI, diffToSI, type Quantity } from '../../shared/utils/units'
-import type { BuildAccess } from './auth'
-import type { FileRow } from './files'
+import type { CsvImported, CsvPreview } from '../../../shared/types/files'
+import { kindOf } from '../../../shared/utils/contentTypes'
+import { parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvProblem, type CsvRow } from '../../../shared/utils/csvReadings'
+import { formatBytes } from '../../../shared/utils/fileNames'
+import type { CsvImportBody } from '../../../shared/utils/fileSchemas'
+import { SI_UNIT, diffFromSI, diffToSI, type Quantity } from '../../../shared/utils/units'
+import type { BuildRow, FileRow } from '../../db/tables'
+import { recordAudit, type Actor } from '../audit'
+import type { Db } from '../db'
 import { insertReading } from './readings'
 import { buildScoreboard } from './scoreboard'
 import { findTarget } from './targets'
@@ -19,8 +20,6 @@ import { findTarget } from './targets'
 // transaction through the same reading service as the API, and a build's readings and
 // scoreboard exported. Parsing and quoting are papaparse's; the row checks are
 // shared/utils/csvReadings.ts.
-
-type Db = Knex | Knex.Transaction
 
 /** The largest CSV the import reads (it is parsed in memory; 100,000 rows take about 3 MB). */
 export const CSV_IMPORT_MAX_BYTES = 20_000_000
@@ -99,7 +98,7 @@ export function parseCsvText(raw: string): ParsedCsv {
 }
 
 async function buildFile(db: Db, buildId: string, id: string): Promise<FileRow> {
-  const file = await db('files').where({ id, build_id: buildId }).first() as FileRow | undefined
+  const file = await db('files').where({ id, build_id: buildId }).first()
   if (!file) throw createError({ statusCode: 404, message: 'file: no such file in this build', data: { fields: { file: 'Not found in this build' } } })
   return file
 }
@@ -149,13 +148,13 @@ export async function previewCsv(db: Db, buildId: string, fileId: string): Promi
  * reading per revision and unit in one transaction, through insertReading so the cached
  * statistics follow. The file is attached to the first reading and can't be imported twice.
  */
-export async function importCsv(event: H3Event, access: BuildAccess, body: z.output<typeof CsvImportBody>): Promise<CsvImported> {
-  const db = useDb()
-  const file = await buildFile(db, access.build.id, body.file)
+export async function importCsv(db: Db, actor: Actor, input: { build: Pick<BuildRow, 'id' | 'team_id' | 'slug'>, body: z.output<typeof CsvImportBody> }): Promise<CsvImported> {
+  const { build, body } = input
+  const file = await buildFile(db, build.id, body.file)
   if (file.reading_id) {
     throw createError({ statusCode: 409, message: `"${file.name}" was imported already; delete that reading first to import the file again`, data: { fields: { file: 'Imported already' } } })
   }
-  const target = await findTarget(db, access.build.id, body.target)
+  const target = await findTarget(db, build.id, body.target)
   const parsed = parseCsvText(await readStoredText(file))
   const plan = planCsvImport(parsed.header, parsed.rows,
     { value: body.valueColumn, unit: body.unitColumn, time: body.timeColumn, revision: body.revisionColumn },
@@ -167,8 +166,8 @@ export async function importCsv(event: H3Event, access: BuildAccess, body: z.out
   // revisions the file names must exist and be open
   if (problemCount === 0) {
     const labels = [...new Set(plan.groups.map(g => g.revision.toLowerCase()))]
-    const found = await db('revisions').where({ build_id: access.build.id }).whereRaw('lower(label) = ANY(?)', [labels])
-      .select('label', 'frozen_at') as { label: string, frozen_at: Date | null }[]
+    const found = await db('revisions').where({ build_id: build.id }).whereRaw('lower(label) = ANY(?)', [labels])
+      .select('label', 'frozen_at')
     const byLabel = new Map(found.map(r => [r.label.toLowerCase(), r]))
     for (const g of plan.groups) {
       const rev = byLabel.get(g.revision.toLowerCase())
@@ -186,15 +185,14 @@ export async function importCsv(event: H3Event, access: BuildAccess, body: z.out
   }
 
   const resolutionUnit = body.unit ?? plan.groups[0]?.unit ?? target.unit
-  const actor = { userId: access.user?.id ?? null, rigTokenId: access.rigTokenId }
   const method = (body.method || `CSV import of ${file.name}`).slice(0, 200)
-  const readings = await db.transaction(async (trx) => {
+  const readings = await (db as Knex).transaction(async (trx) => {
     const free = await trx('files').where({ id: file.id }).whereNull('reading_id').forUpdate().first('id', 'revision_id')
     if (!free) throw createError({ statusCode: 409, message: `"${file.name}" was imported already`, data: { fields: { file: 'Imported already' } } })
     const out: CsvImported['readings'] = []
     for (const g of plan.groups) {
       const resolution = body.resolution ? diffFromSI(diffToSI(body.resolution, resolutionUnit), g.unit) : null
-      const created = await insertReading(trx, access.build.id, {
+      const created = await insertReading(trx, actor, { buildId: build.id, body: {
         revision: g.revision,
         target: target.key,
         values: g.values,
@@ -203,18 +201,16 @@ export async function importCsv(event: H3Event, access: BuildAccess, body: z.out
         resolution,
         takenAt: g.takenAt ?? undefined,
         notes: `Imported from ${file.name}, lines ${g.firstLine}–${g.lastLine}`,
-      }, actor)
+      } })
       out.push({ ...created, revision: g.revision, unitEntered: g.unit, n: g.values.length, firstLine: g.firstLine, lastLine: g.lastLine })
     }
-    const first = await trx('readings').where({ id: out[0]!.reading.id }).first('revision_id')
+    const first = (await trx('readings').where({ id: out[0]!.reading.id }).first('revision_id'))!
     await trx('files').where({ id: file.id }).update({ reading_id: out[0]!.reading.id, revision_id: free.revision_id ?? first.revision_id })
-    await audit(event, {
+    await recordAudit(trx, actor, {
       action: 'readings.imported',
-      teamId: access.build.team_id,
-      actorId: access.actorId,
-      actorLabel: access.actorLabel,
-      detail: { build: access.build.slug, file: file.id, target: target.key, rows: plan.rows, readings: out.map(r => r.reading.id) },
-    }, trx)
+      teamId: build.team_id,
+      detail: { build: build.slug, file: file.id, target: target.key, rows: plan.rows, readings: out.map(r => r.reading.id) },
+    })
     return out
   })
   return { file: { id: file.id, name: file.name }, rows: plan.rows, readings }

@@ -1,35 +1,12 @@
-import type { Knex } from 'knex'
-import type { HistoryEntry } from '../../shared/types/api'
-import { cellInUnit, decideCells, poolCell, type CellDecision, type CellStats, type SiRule } from '../../shared/utils/cellStats'
-import type { UnitInfo } from '../../shared/utils/units'
+import type { HistoryEntry } from '../../../shared/types/api'
+import { cellInUnit, decideCells, poolCell, type CellDecision, type CellStats, type SiRule } from '../../../shared/utils/cellStats'
+import type { UnitInfo } from '../../../shared/utils/units'
+import type { CellRow, StatsRow } from '../../db/tables'
+import type { Db } from '../db'
 
 // The cache of pooled statistics per (target, revision) in `cell_stats`. Plain Knex with the
 // connection passed in, so the seed and the benchmark fill it with the same code as the server.
 // Callers hold the target's row lock (FOR UPDATE) for the whole transaction.
-
-type Db = Knex | Knex.Transaction
-
-export interface CellRow {
-  target_id: string
-  revision_id: string
-  build_id: string
-  readings: number
-  n: number
-  mean: number
-  sd: number | null
-  u_a: number | null
-  u_b: number | null
-  u: number | null
-  nu_eff: number | null
-  ci_low: number | null
-  ci_high: number | null
-  status: CellDecision['status']
-  delta: number | null
-  p: number | null
-  movement: CellDecision['movement']
-  real: boolean | null
-  reason: CellDecision['reason']
-}
 
 /** What the cache needs to know about a target. */
 export interface CellTarget extends SiRule {
@@ -37,27 +14,21 @@ export interface CellTarget extends SiRule {
   buildId: string
 }
 
-export function cellOfRow(r: CellRow): CellStats {
-  return { readings: r.readings, n: r.n, mean: r.mean, sd: r.sd, uA: r.u_a, uB: r.u_b, u: r.u, nuEff: r.nu_eff, ciLow: r.ci_low, ciHigh: r.ci_high }
+/**
+ * The statistics of a stored row in SI: a cell of cell_stats, or one reading (readings has the
+ * same columns, and counts as one reading).
+ */
+export function cellOfRow(r: StatsRow & { readings?: number }): CellStats {
+  return { readings: r.readings ?? 1, n: r.n, mean: r.mean, sd: r.sd, uA: r.u_a, uB: r.u_b, u: r.u, nuEff: r.nu_eff, ciLow: r.ci_low, ciHigh: r.ci_high }
+}
+
+/** The columns of statistics in SI, for a row of readings or of cell_stats. */
+export function statsColumns(c: Omit<CellStats, 'readings'>): StatsRow {
+  return { n: c.n, mean: c.mean, sd: c.sd, u_a: c.uA, u_b: c.uB, u: c.u, nu_eff: c.nuEff, ci_low: c.ciLow, ci_high: c.ciHigh }
 }
 
 export function cellRowOf(target: CellTarget, revisionId: string, c: CellStats, d: CellDecision): CellRow {
-  return {
-    target_id: target.id,
-    revision_id: revisionId,
-    build_id: target.buildId,
-    readings: c.readings,
-    n: c.n,
-    mean: c.mean,
-    sd: c.sd,
-    u_a: c.uA,
-    u_b: c.uB,
-    u: c.u,
-    nu_eff: c.nuEff,
-    ci_low: c.ciLow,
-    ci_high: c.ciHigh,
-    ...decisionColumns(d),
-  }
+  return { target_id: target.id, revision_id: revisionId, build_id: target.buildId, readings: c.readings, ...statsColumns(c), ...decisionColumns(d) }
 }
 
 function decisionColumns(d: CellDecision) {
@@ -86,7 +57,7 @@ export function historyEntryOf(r: CellRow, revision: string, unit: UnitInfo): Hi
  */
 export async function refreshCell(trx: Db, target: CellTarget, revisionId: string): Promise<CellRow | null> {
   const readings = await trx('readings').where({ target_id: target.id, revision_id: revisionId })
-    .select('values_si', 'resolution_si') as { values_si: number[], resolution_si: number | null }[]
+    .select('values_si', 'resolution_si')
   if (readings.length === 0) {
     await trx('cell_stats').where({ target_id: target.id, revision_id: revisionId }).delete()
   }

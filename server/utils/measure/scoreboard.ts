@@ -1,21 +1,19 @@
-import type { Knex } from 'knex'
-import type { BuildHealth, HistoryEntry, RevisionDetail, ScoreTarget, Scoreboard, TargetDetail } from '../../shared/types/api'
-import type { Role } from '../../shared/utils/roles'
-import { marginOf, type TargetStatus } from '../../shared/utils/conformance'
-import { forecastOfHistory } from '../../shared/utils/forecast'
+import type { BuildHealth, HistoryEntry, RevisionDetail, ScoreTarget, Scoreboard, TargetDetail } from '../../../shared/types/api'
+import type { Role } from '../../../shared/utils/roles'
+import { marginOf, type TargetStatus } from '../../../shared/utils/conformance'
+import { forecastOfHistory } from '../../../shared/utils/forecast'
 import { comparison, fixesLanded, loadBuildState, moversOf } from './compare'
 import { formulaKeys } from './formulas'
 import { seriesOf, type TargetSeries } from './history'
-import { readingDetail, readingsQuery, type ReadingRow } from './readings'
-import { revisionBrief, type RevisionRow } from './revisions'
-import type { CellRow } from './statsCache'
-import { findTarget, targetView, type TargetRow } from './targets'
+import type { CellRow, ReadingRow, RevisionRow, TargetRow } from '../../db/tables'
+import type { Db } from '../db'
+import { readingDetail, readingsQuery } from './readings'
+import { revisionBrief } from './revisions'
+import { findTarget, targetView } from './targets'
 
 // Read models: the scoreboard (target strip and readings matrix in one answer), the target and
 // revision pages, and the team's list of builds with their health. Statistics come from the
 // cell_stats cache; a page view does a fixed number of queries, whatever the build's size.
-
-type Db = Knex | Knex.Transaction
 
 interface BuildRef { id: string, slug: string, name: string, summary: string, team_id: string, archived_at: Date | null }
 
@@ -56,7 +54,7 @@ export function buildView(b: Omit<BuildRef, 'team_id'> & { created_at: Date }) {
  */
 export async function buildScoreboard(db: Db, build: BuildRef): Promise<Scoreboard> {
   const [targets, revisions, cells] = await Promise.all([
-    db('targets').where({ build_id: build.id }).orderBy([{ column: 'position' }, { column: 'key' }]) as Promise<TargetRow[]>,
+    db('targets').where({ build_id: build.id }).orderBy([{ column: 'position' }, { column: 'key' }]),
     db('revisions as r').leftJoin('revisions as p', 'p.id', 'r.parent_id').where('r.build_id', build.id).orderBy('r.seq')
       .select('r.id', 'r.label', 'r.seq', 'r.built_on', 'r.summary', 'r.frozen_at', 'p.label as parent_label') as Promise<(RevisionRow & { parent_label: string | null })[]>,
     db('cell_stats').where({ build_id: build.id }).select(CELL_COLUMNS) as Promise<CellRow[]>,
@@ -173,8 +171,8 @@ async function derivedMetByBuild(db: Db, buildIds: string[]): Promise<Map<string
   const out = new Map<string, number>()
   if (buildIds.length === 0) return out
   const [targets, revisions, cells] = await Promise.all([
-    db('targets').whereIn('build_id', buildIds) as Promise<TargetRow[]>,
-    db('revisions').whereIn('build_id', buildIds).orderBy('seq').select('id', 'build_id', 'label') as Promise<{ id: string, build_id: string, label: string }[]>,
+    db('targets').whereIn('build_id', buildIds),
+    db('revisions').whereIn('build_id', buildIds).orderBy('seq').select('id', 'build_id', 'label'),
     db('cell_stats').whereIn('build_id', buildIds).select(CELL_COLUMNS.concat('build_id')) as Promise<CellRow[]>,
   ])
   for (const id of buildIds) {

@@ -1,70 +1,22 @@
 import { createError } from 'h3'
 import type { Knex } from 'knex'
 import type { z } from 'zod'
-import type { ReadingCreated, ReadingDetail } from '../../shared/types/api'
-import { cellFromStats, cellInUnit, cellStatus, type CellStats } from '../../shared/utils/cellStats'
-import type { ReadingBody } from '../../shared/utils/readingSchemas'
-import { MAX_SAMPLES, computeStats, type ReadingStats } from '../../shared/utils/readingStats'
-import { assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI } from '../../shared/utils/units'
+import type { ReadingCreated, ReadingDetail } from '../../../shared/types/api'
+import { cellFromStats, cellInUnit, cellStatus } from '../../../shared/utils/cellStats'
+import type { ReadingBody } from '../../../shared/utils/readingSchemas'
+import { MAX_SAMPLES, computeStats } from '../../../shared/utils/readingStats'
+import { assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI } from '../../../shared/utils/units'
+import type { ReadingRow, TargetRow } from '../../db/tables'
+import type { Actor } from '../audit'
+import type { Db } from '../db'
 import { assertOpen, findRevision } from './revisions'
-import { cellOfRow, refreshCell } from './statsCache'
-import { cellTargetOf, findTarget, unitProblem, type TargetRow } from './targets'
-import { recordTargetChange, targetSnapshot } from './events'
-import { derivedStates, recordDerivedChanges } from './derivedEvents'
+import { cellOfRow, refreshCell, statsColumns } from './statsCache'
+import { trackTargetEvents } from './targetEvents'
+import { cellTargetOf, findTarget, unitProblem } from './targets'
 
 // Readings: the samples of one target on one revision. Plain Knex with the connection passed
 // in (the seed uses it too). Each write re-pools the cell and re-decides the target in the same
 // transaction, holding the target's row lock, so the cached statistics never disagree.
-
-export interface ReadingRow {
-  id: string
-  target_id: string
-  revision_id: string
-  values_si: number[]
-  values_entered: number[]
-  unit_entered: string
-  method: string
-  resolution_si: number | null
-  resolution_entered: number | null
-  n: number
-  mean_si: number
-  sd_si: number | null
-  u_a_si: number | null
-  u_b_si: number | null
-  u_si: number | null
-  nu_eff: number | null
-  ci_low_si: number | null
-  ci_high_si: number | null
-  taken_at: Date
-  taken_by: string | null
-  rig_token_id: string | null
-  notes: string
-  created_at: Date
-}
-
-export interface ReadingActor {
-  userId: string | null
-  rigTokenId: string | null
-}
-
-export function readingCell(r: ReadingRow): CellStats {
-  return { readings: 1, n: r.n, mean: r.mean_si, sd: r.sd_si, uA: r.u_a_si, uB: r.u_b_si, u: r.u_si, nuEff: r.nu_eff, ciLow: r.ci_low_si, ciHigh: r.ci_high_si }
-}
-
-/** The statistics of one reading (in SI) as the columns of its row. */
-export function readingStatsColumns(stats: ReadingStats) {
-  return {
-    n: stats.n,
-    mean_si: stats.mean,
-    sd_si: stats.sd,
-    u_a_si: stats.uA,
-    u_b_si: stats.uB,
-    u_si: stats.u,
-    nu_eff: stats.nuEff,
-    ci_low_si: stats.ci95?.[0] ?? null,
-    ci_high_si: stats.ci95?.[1] ?? null,
-  }
-}
 
 function tooLarge(): never {
   throw createError({ statusCode: 400, message: 'values: The values are too large to compute with in SI', data: { fields: { values: 'Too large' } } })
@@ -75,7 +27,8 @@ function tooLarge(): never {
  * the build, 409 for a derived or archived target, a frozen revision or a cell that would pool more than
  * MAX_SAMPLES values, 422 for a unit of another quantity.
  */
-export async function insertReading(trx: Knex.Transaction, buildId: string, body: z.output<typeof ReadingBody>, actor: ReadingActor): Promise<ReadingCreated> {
+export async function insertReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
+  const { buildId, body } = input
   const target = await findTarget(trx, buildId, body.target, true)
   const revision = await findRevision(trx, buildId, body.revision, 'share')
   if (target.formula !== null) {
@@ -95,7 +48,7 @@ export async function insertReading(trx: Knex.Transaction, buildId: string, body
     throw unitProblem(e)
   }
   // the readings of a cell are pooled into one sample set, which holds at most MAX_SAMPLES values
-  const held = (await trx('readings').where({ target_id: target.id, revision_id: revision.id }).sum('n as n').first())?.n ?? 0
+  const held = (await trx('readings').where({ target_id: target.id, revision_id: revision.id }).sum({ n: 'n' }).first())?.n ?? 0
   if (Number(held) + body.values.length > MAX_SAMPLES) {
     throw createError({
       statusCode: 409,
@@ -118,19 +71,15 @@ export async function insertReading(trx: Knex.Transaction, buildId: string, body
     method: body.method ?? '',
     resolution_si: resolutionSI,
     resolution_entered: body.resolution ?? null,
-    ...readingStatsColumns(stats),
+    ...statsColumns(cellFromStats(stats)),
     taken_at: body.takenAt ?? trx.fn.now(),
     taken_by: actor.userId,
     rig_token_id: actor.rigTokenId,
     notes: body.notes ?? '',
-  }).returning('id') as { id: string }[]
+  }).returning('id')
 
   const rule = cellTargetOf(target)
-  const before = await targetSnapshot(trx, target.id)
-  const derivedBefore = await derivedStates(trx, buildId, target.key)
-  const cell = await refreshCell(trx, rule, revision.id)
-  await recordTargetChange(trx, target, before)
-  await recordDerivedChanges(trx, buildId, target.key, derivedBefore)
+  const cell = await trackTargetEvents(trx, target, () => refreshCell(trx, rule, revision.id))
   const display = units.target
   const own = cellFromStats(stats)
   return {
@@ -142,28 +91,25 @@ export async function insertReading(trx: Knex.Transaction, buildId: string, body
 }
 
 /** Deletes a reading of the build; 404 when there is none, 409 when its revision is frozen. */
-export async function deleteReading(trx: Knex.Transaction, buildId: string, id: string): Promise<{ target: TargetRow, revision: string, n: number }> {
+export async function deleteReading(trx: Knex.Transaction, input: { buildId: string, id: string }): Promise<{ target: TargetRow, revision: string, n: number }> {
+  const { buildId, id } = input
   const found = await trx('readings').join('targets', 'targets.id', 'readings.target_id')
-    .where({ 'readings.id': id, 'targets.build_id': buildId })
+    .where('readings.id', id).where('targets.build_id', buildId)
     .first('targets.key', 'readings.revision_id') as { key: string, revision_id: string } | undefined
   if (!found) throw createError({ statusCode: 404, message: 'Reading not found' })
   const target = await findTarget(trx, buildId, found.key, true)
-  const revision = await trx('revisions').where({ id: found.revision_id }).forShare().first()
+  const revision = (await trx('revisions').where({ id: found.revision_id }).forShare().first())!
   assertOpen(revision, 'delete its readings')
-  const [gone] = await trx('readings').where({ id }).delete().returning('n') as { n: number }[]
+  const [gone] = await trx('readings').where({ id }).delete().returning('n')
   if (!gone) throw createError({ statusCode: 404, message: 'Reading not found' })
-  const before = await targetSnapshot(trx, target.id)
-  const derivedBefore = await derivedStates(trx, buildId, target.key)
-  await refreshCell(trx, cellTargetOf(target), revision.id)
-  await recordTargetChange(trx, target, before)
-  await recordDerivedChanges(trx, buildId, target.key, derivedBefore)
+  await trackTargetEvents(trx, target, () => refreshCell(trx, cellTargetOf(target), revision.id))
   return { target, revision: revision.label, n: gone.n }
 }
 
 /** A stored reading as the target and revision pages show it. */
 export function readingDetail(r: ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null }, target: TargetRow): ReadingDetail {
   const unit = parseUnit(target.unit)
-  const cell = readingCell(r)
+  const cell = cellOfRow(r)
   const rule = cellTargetOf(target)
   return {
     id: r.id,
@@ -186,7 +132,7 @@ export function readingDetail(r: ReadingRow & { revision_label: string, by_user:
 }
 
 /** Readings with who took them, for the target and revision pages (one query). */
-export function readingsQuery(db: Knex | Knex.Transaction) {
+export function readingsQuery(db: Db) {
   return db('readings as rd')
     .join('revisions as rv', 'rv.id', 'rd.revision_id')
     .leftJoin('users as u', 'u.id', 'rd.taken_by')

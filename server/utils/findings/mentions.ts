@@ -1,5 +1,5 @@
 import { mentionEmail } from '~~/email/mention'
-import { sendOnce } from './digests'
+import { sendOnce } from '../notify/digests'
 
 // E-mails to the people a comment mentions. addComment writes a mention_notices row per person
 // in the comment's transaction; the queue sends them (nudged after the commit, and swept every

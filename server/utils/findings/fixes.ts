@@ -1,15 +1,17 @@
 import { createError } from 'h3'
 import type { Knex } from 'knex'
 import type { z } from 'zod'
-import type { FixView, MyFix } from '../../shared/types/findings'
-import { fixRuleProblems, type FixBody, type FixPatch } from '../../shared/utils/findingSchemas'
-import { FIX_STATE_LABELS, OPEN_FIX_STATES } from '../../shared/utils/lanes'
-import { fixView, fixesQuery, recordFindingEvent, type FindingActor, type FindingRow, type FixJoinedRow } from './findings'
+import type { FixView, MyFix } from '../../../shared/types/findings'
+import { fixRuleProblems, type FixBody, type FixPatch } from '../../../shared/utils/findingSchemas'
+import { FIX_STATE_LABELS, OPEN_FIX_STATES } from '../../../shared/utils/lanes'
+import type { FindingRow } from '../../db/tables'
+import type { Actor } from '../audit'
+import type { Db } from '../db'
+import { fixView, fixesQuery, type FixJoinedRow } from './board'
+import { recordFindingEvent } from './edit'
 
 // Fixes of a finding: who owns them, when they are due, and the revision they landed in.
 // Every change to a fix is a write to its finding (its version goes up, its history says so).
-
-type Db = Knex | Knex.Transaction
 
 async function ownerOf(db: Db, buildId: string, ownerId: string | null | undefined): Promise<{ id: string, name: string } | null> {
   if (!ownerId) return null
@@ -41,7 +43,8 @@ async function touch(trx: Knex.Transaction, findingId: string) {
   await trx('findings').where({ id: findingId }).update({ version: trx.raw('version + 1'), updated_at: trx.fn.now() })
 }
 
-export async function addFix(trx: Knex.Transaction, f: FindingRow, body: z.output<typeof FixBody>, actor: FindingActor): Promise<FixView> {
+export async function addFix(trx: Knex.Transaction, actor: Actor, input: { finding: FindingRow, body: z.output<typeof FixBody> }): Promise<FixView> {
+  const { finding: f, body } = input
   const owner = await ownerOf(trx, f.build_id, body.ownerId)
   const landed = await landedRevision(trx, f.build_id, body.landedIn)
   const [row] = await trx('fixes').insert({
@@ -52,7 +55,7 @@ export async function addFix(trx: Knex.Transaction, f: FindingRow, body: z.outpu
     state: body.state,
     landed_revision_id: landed?.id ?? null,
     created_by: actor.userId,
-  }).returning('id') as { id: string }[]
+  }).returning('id')
   await touch(trx, f.id)
   await recordFindingEvent(trx, f.id, 'fix-added', actor, {
     fix: row!.id,
@@ -65,7 +68,8 @@ export async function addFix(trx: Knex.Transaction, f: FindingRow, body: z.outpu
   return await fixById(trx, row!.id)
 }
 
-export async function editFix(trx: Knex.Transaction, f: FindingRow, fixId: string, patch: z.output<typeof FixPatch>, actor: FindingActor): Promise<FixView> {
+export async function editFix(trx: Knex.Transaction, actor: Actor, input: { finding: FindingRow, fixId: string, patch: z.output<typeof FixPatch> }): Promise<FixView> {
+  const { finding: f, fixId, patch } = input
   const before = await fixesQuery(trx).where('x.id', fixId).where('x.finding_id', f.id).first() as FixJoinedRow | undefined
   if (!before) throw createError({ statusCode: 404, message: 'Fix not found on this finding' })
   // a fix that leaves the landed state forgets its revision unless it is given again

@@ -1,18 +1,17 @@
-import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
 import type { Role } from '#shared/utils/roles'
 import { ROLE_LABELS } from '#shared/utils/roles'
 import { invitationEmail } from '~~/email/invitation'
+import type { Actor } from '../audit'
 
 const INVITATION_DAYS = 7
 
-/** Gives the invitation a fresh token and expiry, and e-mails the link. */
-export async function issueInvitation(event: H3Event, trx: Knex.Transaction, p: {
+/** Gives the invitation a fresh token and expiry, and e-mails the link from `actor` (the inviter). */
+export async function issueInvitation(trx: Knex.Transaction, actor: Actor, p: {
   invitationId: string
   email: string
   role: Role
   team: { id: string, name: string }
-  inviter: { name: string }
 }) {
   const token = newToken()
   await trx('invitations').where({ id: p.invitationId }).update({
@@ -24,7 +23,7 @@ export async function issueInvitation(event: H3Event, trx: Knex.Transaction, p: 
   try {
     await sendMail({
       to: p.email,
-      ...invitationEmail({ teamName: p.team.name, inviterName: p.inviter.name, roleLabel: ROLE_LABELS[p.role], link: appLink(`/invitations/${token}`) }),
+      ...invitationEmail({ teamName: p.team.name, inviterName: actor.name, roleLabel: ROLE_LABELS[p.role], link: appLink(`/invitations/${token}`) }),
     })
   }
   catch {

@@ -1,20 +1,20 @@
 import { createError } from 'h3'
 import type { Knex } from 'knex'
 import type { z } from 'zod'
-import type { TargetView } from '../../shared/types/api'
-import { hazardOf } from '../../shared/utils/caution'
-import { tidyNumber } from '../../shared/utils/cellStats'
-import type { Comparator } from '../../shared/utils/conformance'
-import { targetRuleProblems, type TargetBody, type TargetPatch } from '../../shared/utils/targetSchemas'
-import { QUANTITY_LABELS, UnitError, assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI, type Quantity, type UnitInfo } from '../../shared/utils/units'
-import { redecideTarget, type CellTarget } from './statsCache'
-import { recordTargetChange, targetSnapshot } from './events'
+import type { TargetView } from '../../../shared/types/api'
+import { hazardOf } from '../../../shared/utils/caution'
+import { tidyNumber } from '../../../shared/utils/cellStats'
+import { targetRuleProblems, type TargetBody, type TargetPatch } from '../../../shared/utils/targetSchemas'
+import { QUANTITY_LABELS, UnitError, assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI, type UnitInfo } from '../../../shared/utils/units'
+import type { TargetRow } from '../../db/tables'
+import type { Actor } from '../audit'
+import type { Db } from '../db'
 import { checkTargetFormula } from './formulas'
+import { redecideTarget, type CellTarget } from './statsCache'
+import { trackTargetEvents } from './targetEvents'
 
 // Targets of a build. Plain Knex with the connection passed in (the seed uses it too).
 // Thresholds arrive in the display unit and are stored in SI.
-
-type Db = Knex | Knex.Transaction
 
 const TARGET_KEY = /^[a-z][a-z0-9_]{0,59}$/
 
@@ -24,27 +24,6 @@ function finiteOr400(values: Record<string, number | null>) {
   if (bad.length > 0) {
     throw createError({ statusCode: 400, message: `${bad[0]}: The value is too large to compute with in SI`, data: { fields: Object.fromEntries(bad.map(k => [k, 'Too large'])) } })
   }
-}
-
-export interface TargetRow {
-  id: string
-  build_id: string
-  key: string
-  name: string
-  unit: string
-  quantity: Quantity
-  comparator: Comparator
-  threshold: number
-  threshold_high: number | null
-  stretch: number | null
-  noise_band: number | null
-  notes: string
-  position: number
-  archived_at: Date | null
-  /** a derived target's formula over other targets' keys; null for a measured target */
-  formula: string | null
-  created_at: Date
-  updated_at: Date
 }
 
 /** A unit the caller typed; an unknown one is a 422 saying so. */
@@ -101,7 +80,7 @@ export async function findTarget(db: Db, buildId: string, key: string, lock = fa
   const wanted = String(key).trim()
   // a key that can't exist is not looked up (nor is text PostgreSQL would refuse)
   const q = db('targets').where({ build_id: buildId, key: wanted }).first()
-  const row = TARGET_KEY.test(wanted) ? (await (lock ? q.forUpdate() : q)) as TargetRow | undefined : undefined
+  const row = TARGET_KEY.test(wanted) ? await (lock ? q.forUpdate() : q) : undefined
   if (!row) throw createError({ statusCode: 404, message: `Target "${key}" not found in this build`, data: { fields: { target: 'Not found in this build' } } })
   return row
 }
@@ -112,12 +91,13 @@ function duplicateKey(key: string) {
 
 const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23505'
 
-export async function insertTarget(trx: Knex.Transaction, buildId: string, body: z.output<typeof TargetBody>, createdBy: string | null): Promise<TargetRow> {
+export async function insertTarget(trx: Knex.Transaction, actor: Pick<Actor, 'userId'>, input: { buildId: string, body: z.output<typeof TargetBody> }): Promise<TargetRow> {
+  const { buildId, body } = input
   const unit = unitOr422(body.unit)
   // serialises target creation in the build (the key check and the position)
   await trx('builds').where({ id: buildId }).forUpdate().first('id')
   if (await trx('targets').where({ build_id: buildId, key: body.key }).first('id')) throw duplicateKey(body.key)
-  const { max } = (await trx('targets').where({ build_id: buildId }).max('position as max').first()) as { max: number | null }
+  const max: number | null = (await trx('targets').where({ build_id: buildId }).max({ max: 'position' }).first())?.max ?? null
   const si = {
     threshold: toSI(body.threshold, unit),
     thresholdHigh: body.comparator === 'between' ? toSI(body.thresholdHigh!, unit) : null,
@@ -141,9 +121,9 @@ export async function insertTarget(trx: Knex.Transaction, buildId: string, body:
       notes: body.notes ?? '',
       formula,
       position: (max ?? -1) + 1,
-      created_by: createdBy,
+      created_by: actor.userId,
     }).returning('*')
-    return row as TargetRow
+    return row!
   }
   catch (e) {
     if (isUniqueViolation(e)) throw duplicateKey(body.key)
@@ -156,7 +136,8 @@ export async function insertTarget(trx: Knex.Transaction, buildId: string, body:
  * quantity; thresholds given in the same call are read in the new unit. When the rule changes,
  * the cached statuses and movements are decided again in the same transaction.
  */
-export async function updateTarget(trx: Knex.Transaction, t: TargetRow, patch: z.output<typeof TargetPatch>): Promise<TargetRow> {
+export async function updateTarget(trx: Knex.Transaction, input: { target: TargetRow, patch: z.output<typeof TargetPatch> }): Promise<TargetRow> {
+  const { target: t, patch } = input
   let unit = parseUnit(t.unit)
   if (patch.unit !== undefined) {
     try {
@@ -211,27 +192,23 @@ export async function updateTarget(trx: Knex.Transaction, t: TargetRow, patch: z
   if (patch.archived === true && !t.archived_at) changes.archived_at = trx.fn.now()
   if (patch.archived === false && t.archived_at) {
     changes.archived_at = null
-    const { max } = (await trx('targets').where({ build_id: t.build_id }).whereNull('archived_at').max('position as max').first()) as { max: number | null }
+    const max: number | null = (await trx('targets').where({ build_id: t.build_id }).whereNull('archived_at').max({ max: 'position' }).first())?.max ?? null
     changes.position = (max ?? -1) + 1
   }
   const ruleChanged = ['comparator', 'threshold', 'threshold_high', 'noise_band'].some(k => k in changes)
   // a derived target's state is evaluated, not cached: take it before the row changes
   const derived = (t.formula !== null || typeof changes.formula === 'string') && (ruleChanged || 'formula' in changes)
-  const derivedBefore = derived ? await derivedStates(trx, t.build_id, t.key, true) : null
-  const [row] = await trx('targets').where({ id: t.id }).update(changes).returning('*') as TargetRow[]
-  if (derived) {
-    await recordDerivedChanges(trx, t.build_id, t.key, derivedBefore, true)
-  }
-  else if (ruleChanged) {
-    const before = await targetSnapshot(trx, row!.id)
-    await redecideTarget(trx, cellTargetOf(row!))
-    await recordTargetChange(trx, row!, before)
-  }
-  return row!
+  const write = async () => (await trx('targets').where({ id: t.id }).update(changes).returning('*'))[0]!
+  if (derived) return await trackTargetEvents(trx, t, write, { own: false, derived: 'self' })
+  const row = await write()
+  // a measured target's cells are decided again under the new rule (the cells' statistics stay)
+  if (ruleChanged) await trackTargetEvents(trx, row, () => redecideTarget(trx, cellTargetOf(row)), { derived: 'none' })
+  return row
 }
 
 /** Puts the build's active targets in the order of `keys`, which must list each of them once. */
-export async function reorderTargets(trx: Knex.Transaction, buildId: string, keys: string[]): Promise<void> {
+export async function reorderTargets(trx: Knex.Transaction, input: { buildId: string, keys: string[] }): Promise<void> {
+  const { buildId, keys } = input
   await trx('builds').where({ id: buildId }).forUpdate().first('id')
   const active: string[] = await trx('targets').where({ build_id: buildId }).whereNull('archived_at').pluck('key')
   const given = new Set(keys)

@@ -1,9 +1,8 @@
-import type { Knex } from 'knex'
+import type { Db } from '../db'
 import type { PoolClient } from 'pg'
 import { digestEmail, type DigestEvent, type DigestInput } from '~~/email/digest'
 import type { RenderedEmail } from '~~/email/layout'
 
-type Db = Knex | Knex.Transaction
 export type Frequency = 'immediate' | 'daily' | 'weekly' | 'off'
 export const FREQUENCIES: Frequency[] = ['immediate', 'daily', 'weekly', 'off']
 
@@ -88,20 +87,21 @@ export async function sendOnce(p: { userId: string, buildId: string, key: string
   const claimed = await db('deliveries')
     .insert({ user_id: p.userId, build_id: p.buildId, key: p.key, status: 'sending', event_ids: p.eventIds })
     .onConflict(['user_id', 'key']).ignore().returning('id')
-  if (!claimed.length) return false
+  const claim = claimed[0]
+  if (!claim) return false
   try {
     await sendMail({ to: p.to, ...p.message })
   }
   catch (err) {
-    await db('deliveries').where({ id: claimed[0].id }).delete()
+    await db('deliveries').where({ id: claim.id }).delete()
     throw err
   }
-  await db('deliveries').where({ id: claimed[0].id }).update({ status: 'sent', sent_at: db.fn.now() })
+  await db('deliveries').where({ id: claim.id }).update({ status: 'sent', sent_at: db.fn.now() })
   return true
 }
 
 async function buildOf(db: Db, buildId: string) {
-  return await db('builds').where({ id: buildId }).first('id', 'name', 'slug') as { id: string, name: string, slug: string } | undefined
+  return await db('builds').where({ id: buildId }).first('id', 'name', 'slug')
 }
 
 /** One immediate e-mail about one event, if the person still follows the build immediately. */

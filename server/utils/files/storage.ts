@@ -2,9 +2,8 @@ import { randomUUID } from 'node:crypto'
 import { createReadStream, promises as fsp } from 'node:fs'
 import { join, resolve } from 'node:path'
 import type { Readable } from 'node:stream'
-import type { Knex } from 'knex'
 import fsDriver from 'unstorage/drivers/fs'
-import { S3Store, type S3Config } from './s3'
+import { S3Store, type S3Config } from '../s3'
 
 // Where the bytes of evidence files live, behind one interface that streams both ways.
 //
@@ -165,44 +164,4 @@ export function filesConfigFromEnv(env: Record<string, string | undefined> = pro
       secretAccessKey: env.NUXT_FILES_S3_SECRET_ACCESS_KEY ?? '',
     },
   }
-}
-
-export interface SweepResult {
-  /** stored objects looked at */
-  scanned: number
-  /** removed: no row, and older than the grace period */
-  removed: string[]
-  /** left alone for now: younger than the grace period (an upload may be writing its row) */
-  young: number
-}
-
-/**
- * Removes stored bytes that have no row in `files` and were last changed before the grace
- * period (a crash between storing the bytes and writing the row, or a build deleted with its
- * rows). An upload in progress keeps touching its bytes, so it is never older than the grace.
- */
-export async function sweepOrphans(db: Knex, store: FileStore, opts: { graceMs: number, now?: Date, dryRun?: boolean }): Promise<SweepResult> {
-  const cutoff = (opts.now ?? new Date()).getTime() - opts.graceMs
-  const result: SweepResult = { scanned: 0, removed: [], young: 0 }
-  let batch: StoredObject[] = []
-  const flush = async () => {
-    const known = new Set(await db('files').whereIn('storage_key', batch.map(o => o.key)).pluck('storage_key') as string[])
-    for (const o of batch) {
-      if (known.has(o.key)) continue
-      if (!opts.dryRun) await store.remove(o.key)
-      result.removed.push(o.key)
-    }
-    batch = []
-  }
-  for await (const o of store.list()) {
-    result.scanned++
-    if (o.modifiedAt.getTime() > cutoff) {
-      result.young++
-      continue
-    }
-    batch.push(o)
-    if (batch.length >= 500) await flush()
-  }
-  if (batch.length) await flush()
-  return result
 }

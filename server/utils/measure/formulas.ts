@@ -1,6 +1,6 @@
 import { createError } from 'h3'
 import type { Knex } from 'knex'
-import { assertNoCycle, checkFormula, FormulaError, parseFormula } from '../../shared/utils/derived'
+import { assertNoCycle, checkFormula, FormulaError, parseFormula } from '../../../shared/utils/derived'
 
 // Derived targets' formulas checked against the build when they are saved: the keys must be
 // targets of the build, the formulas must not refer to each other in a circle, and the result
@@ -35,7 +35,7 @@ export function formulaKeys(formula: string | null): string[] {
 export async function checkTargetFormula(trx: Knex.Transaction, buildId: string, self: { key: string, unit: string }, formula: string): Promise<string> {
   await trx('builds').where({ id: buildId }).forUpdate().first('id')
   const others = await trx('targets').where({ build_id: buildId }).whereNot({ key: self.key })
-    .select('key', 'unit', 'formula') as { key: string, unit: string, formula: string | null }[]
+    .select('key', 'unit', 'formula')
   try {
     const { symbols } = parseFormula(formula)
     if (symbols.length === 0) {
