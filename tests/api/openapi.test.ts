@@ -8,7 +8,7 @@ import {
   BuildOut, FindingOut, MoveResultOut, ReadingCreatedOut, RevisionOut, ScoreboardOut, TargetOut, TeamOut,
 } from '../../server/utils/api/responses'
 import { Client, closeTestDb, makeWorld, type World } from '../support/api'
-import { ROOT } from '../support/env'
+import { BASE_URL, ROOT } from '../support/env'
 import { routes } from '../support/routeTable'
 
 type Doc = Record<string, any>
@@ -226,6 +226,36 @@ describe('GET /api/v1/openapi.json', () => {
     const refs = JSON.stringify(doc).match(/"#\/components\/schemas\/[^"]+"/g) ?? []
     expect(refs.length).toBeGreaterThan(20)
     for (const ref of refs) expect(doc.components.schemas[ref.slice(22, -1)], ref).toBeTruthy()
+  })
+})
+
+describe('GET /api/v1/docs', () => {
+  it('is a page that runs no inline script and loads its files from this server', async () => {
+    const res = await fetch(`${BASE_URL}/api/v1/docs`)
+    expect(res.status).toBe(200)
+    expect(res.headers.get('content-type')).toMatch(/^text\/html/)
+    expect(res.headers.get('content-security-policy')).toMatch(/script-src 'self';/)
+    const html = await res.text()
+    const scripts = [...html.matchAll(/<script\b([^>]*)>([\s\S]*?)<\/script>/g)]
+    expect(scripts.map(m => m[1]!.match(/src="([^"]+)"/)?.[1])).toEqual(['/api/v1/docs/swagger-ui-bundle.js', '/api/v1/docs/init.js'])
+    expect(scripts.every(m => m[2]!.trim() === '')).toBe(true)
+    expect(html).not.toMatch(/https?:\/\//)
+  })
+
+  it('serves the page’s own files with an ETag, and no other file', async () => {
+    for (const [file, type] of [['swagger-ui-bundle.js', 'text/javascript'], ['swagger-ui.css', 'text/css'], ['init.js', 'text/javascript']]) {
+      const res = await fetch(`${BASE_URL}/api/v1/docs/${file}`)
+      expect(res.status, file).toBe(200)
+      expect(res.headers.get('content-type')).toContain(type)
+      const body = await res.text()
+      expect(body.length).toBeGreaterThan(file === 'init.js' ? 100 : 100_000)
+      const etag = res.headers.get('etag')!
+      expect(etag).toBeTruthy()
+      expect((await fetch(`${BASE_URL}/api/v1/docs/${file}`, { headers: { 'If-None-Match': etag } })).status).toBe(304)
+    }
+    for (const file of ['index.html', 'swagger-initializer.js', 'swagger-ui-bundle.js.map', '..%2Fpackage.json']) {
+      expect((await fetch(`${BASE_URL}/api/v1/docs/${file}`)).status, file).toBe(404)
+    }
   })
 })
 

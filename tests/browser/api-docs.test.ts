@@ -1,6 +1,6 @@
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { apiRoutes } from '../../server/utils/api/routes'
+import { API_TAGS, apiRoutes } from '../../server/utils/api/routes'
 import { launchBrowser, newContext, screenshot, watchPage } from '../support/browser'
 
 describe('the API reference at /api/v1/docs', () => {
@@ -20,7 +20,8 @@ describe('the API reference at /api/v1/docs', () => {
     expect(res?.headers()['content-security-policy']).toContain("script-src 'self'")
     await page.locator('.opblock').first().waitFor()
 
-    // one block per documented operation, titled with its path
+    // the routes in their groups, one block per documented operation, titled with its path
+    await expect(page.locator('.opblock-tag').count()).resolves.toBe(Object.keys(API_TAGS).length)
     await expect(page.locator('.opblock').count()).resolves.toBe(apiRoutes.length)
     const paths = await page.locator('.opblock-summary-path').allInnerTexts()
     expect(new Set(paths.map(p => p.replace(/\u200B/g, '').trim()))).toEqual(new Set(apiRoutes.map(r => r.path)))

@@ -3,7 +3,7 @@ import {
   ApiError, BuildEventOut, BuildOut, FileCreatedOut, FindingOut, FixOut, ForecastOut, HistoryEntryOut, MoveResultOut,
   ReadingCreatedOut, RevisionOut, ScoreboardOut, SignedInOut, SubscriptionOut, TargetOut, TeamOut,
 } from './responses'
-import { apiRoutes, type ApiAccess, type ApiAnswer, type ApiRoute } from './routes'
+import { API_TAGS, apiRoutes, type ApiAccess, type ApiAnswer, type ApiRoute } from './routes'
 
 // The OpenAPI 3.1 document of the public API (GET /api/v1/openapi.json, browsable at /api/v1/docs),
 // generated from the route list in ./routes.ts and the zod schemas the handlers validate with.
@@ -130,6 +130,7 @@ function operation(route: ApiRoute, schemas: Record<string, JsonSchema>) {
   const params = parameters(route)
   const body = requestBody(route, schemas)
   return {
+    tags: [route.tag],
     summary: route.summary,
     ...(route.description ? { description: route.description } : {}),
     security: SECURITY[route.access],
@@ -156,6 +157,7 @@ export function buildOpenApiDocument(routes: readonly ApiRoute[] = apiRoutes) {
         + 'Errors are JSON {statusCode, message, data?}; bad input never gets a 500.',
     },
     servers: [{ url: '/' }],
+    tags: Object.entries(API_TAGS).map(([name, description]) => ({ name, description })),
     components: {
       securitySchemes: {
         session: { type: 'apiKey', in: 'cookie', name: 'nuxt-session', description: 'The cookie set by POST /api/auth/login' },

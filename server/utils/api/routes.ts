@@ -19,6 +19,18 @@ import {
 export type ApiMethod = 'get' | 'post' | 'put' | 'patch' | 'delete'
 export type ApiAccess = 'public' | 'session' | 'session-or-rig'
 
+export const API_TAGS = {
+  'Sign-in': 'A session for the calls below; a rig sends its token instead',
+  'Builds': 'Teams and their builds',
+  'Targets': 'The numbers a build has to reach, in their display units',
+  'Revisions and readings': 'Each revision of the build, and what was measured on it',
+  'Findings': 'Problems seen in testing and their place on the board',
+  'Files': 'Evidence: photos, logs, instrument files',
+  'Reviewers': 'What reviewers hear about, and how often',
+  'This reference': 'The document itself',
+} as const
+export type ApiTag = keyof typeof API_TAGS
+
 /** An answer: a zod schema (JSON), `raw` (bytes), or none (`schema` absent). */
 export interface ApiAnswer {
   description: string
@@ -32,6 +44,8 @@ export interface ApiRoute {
   method: ApiMethod
   /** OpenAPI style: /api/v1/builds/{build} */
   path: string
+  /** the group the reference page lists it under (API_TAGS) */
+  tag: ApiTag
   summary: string
   description?: string
   access: ApiAccess
@@ -62,6 +76,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/auth/login',
+    tag: 'Sign-in',
     summary: 'Sign in; keep the session cookie for the calls below',
     access: 'public',
     body: LoginBody,
@@ -72,6 +87,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/teams',
+    tag: 'Builds',
     summary: 'The caller’s teams with their role',
     access: 'session',
     ok: { 200: { description: 'OK', schema: TeamOut, list: true } },
@@ -80,6 +96,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/builds',
+    tag: 'Builds',
     summary: 'Builds the caller can see (a rig token: its own build)',
     access: 'session-or-rig',
     ok: { 200: { description: 'OK', schema: BuildOut, list: true } },
@@ -88,6 +105,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/v1/builds',
+    tag: 'Builds',
     summary: 'Create a build (Engineer or Owner of the team)',
     access: 'session',
     body: BuildBody,
@@ -98,6 +116,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/builds/{build}',
+    tag: 'Builds',
     summary: 'One build and the caller’s role',
     access: 'session-or-rig',
     params: build,
@@ -107,6 +126,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/builds/{build}/targets',
+    tag: 'Targets',
     summary: 'The build’s targets in strip order',
     access: 'session-or-rig',
     params: build,
@@ -117,6 +137,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/v1/builds/{build}/targets',
+    tag: 'Targets',
     summary: 'Create a target; thresholds are given in its display unit',
     description: 'With `formula` the target is derived: 400 for a formula that can’t be read, 422 naming an unknown key, both quantities of a dimension mismatch, or the circle of formulas.',
     access: 'session-or-rig',
@@ -129,6 +150,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/v1/builds/{build}/revisions',
+    tag: 'Revisions and readings',
     summary: 'Create a revision',
     access: 'session-or-rig',
     params: build,
@@ -140,6 +162,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/v1/builds/{build}/readings',
+    tag: 'Revisions and readings',
     summary: 'Record a reading; its statistics come back in the target’s display unit',
     description: 'Several readings of one target on one revision are pooled into one sample set. 404 for a target or revision not in the build; 409 for a frozen revision, an archived target or a derived target (it takes no readings); 422 for an unknown unit or one of another quantity.',
     access: 'session-or-rig',
@@ -152,6 +175,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/builds/{build}/scoreboard',
+    tag: 'Targets',
     summary: 'Every target with its status, per-revision history and forecast: the target strip and the readings matrix in one answer',
     description: 'Derived targets are evaluated per revision from their inputs’ pooled means; a revision where that fails is listed in `cantEvaluate` with the reason (never an error).',
     access: 'session-or-rig',
@@ -162,6 +186,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/builds/{build}/findings',
+    tag: 'Findings',
     summary: 'The build’s findings by lane: safety first, then by rank',
     access: 'session-or-rig',
     params: build,
@@ -172,6 +197,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/v1/builds/{build}/findings',
+    tag: 'Findings',
     summary: 'File a finding; it lands at the bottom of Spotted',
     access: 'session-or-rig',
     params: build,
@@ -183,6 +209,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/v1/findings/{id}/move',
+    tag: 'Findings',
     summary: 'Move a finding to a lane, between two cards',
     description: 'Retest needs a fix that landed in a revision. Closed needs a reading on a revision after the one it was seen on (and not before its fix landed), with each target it hurts Met there. An Owner may override either rule with a reason.',
     access: 'session-or-rig',
@@ -199,6 +226,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'post',
     path: '/api/v1/builds/{build}/files',
+    tag: 'Files',
     summary: 'Upload evidence (a photo, footage, a log, an instrument CSV), optionally attached to a revision, reading or finding',
     description: 'Send the fields before the file so a wrong attachment is refused before the upload. The file streams to storage; '
       + 'past the size limit or the team’s storage quota the answer is 413 and nothing is kept.',
@@ -217,6 +245,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/files/{id}',
+    tag: 'Files',
     summary: 'The bytes of a file of a build the caller can see',
     description: 'Images, video, audio, PDF, plain text and CSV are served inline; everything else as an attachment. HTML, SVG, XML and scripts are always an attachment of type application/octet-stream. '
       + 'Content-Disposition carries the name (filename* in UTF-8 when needed).',
@@ -241,6 +270,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/builds/{build}/events',
+    tag: 'Reviewers',
     summary: 'What happened to the build that reviewers hear about, newest first',
     access: 'session-or-rig',
     params: build,
@@ -251,6 +281,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'put',
     path: '/api/v1/builds/{build}/subscription',
+    tag: 'Reviewers',
     summary: 'The caller’s own digest subscription to the build (session only)',
     access: 'session',
     params: build,
@@ -262,6 +293,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/openapi.json',
+    tag: 'This reference',
     summary: 'This document',
     access: 'public',
     ok: { 200: { description: 'The OpenAPI 3.1 document' } },
@@ -270,6 +302,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/docs',
+    tag: 'This reference',
     summary: 'This document as a page to browse and try',
     access: 'public',
     ok: { 200: { description: 'An HTML page', raw: 'text/html' } },
@@ -278,6 +311,7 @@ export const apiRoutes: ApiRoute[] = [
   {
     method: 'get',
     path: '/api/v1/docs/{file}',
+    tag: 'This reference',
     summary: 'The script and style files of the page above',
     access: 'public',
     params: { file: 'one of the page’s files' },
