@@ -1,3 +1,6 @@
+import { createRequire } from 'node:module'
+import { dirname } from 'node:path'
+
 // Ratchet: the repository root is Nuxt's source folder (pages/, components/, server/ … at the top).
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
@@ -58,6 +61,14 @@ export default defineNuxtConfig({
   },
   nitro: {
     experimental: { tasks: false },
+    // the API reference page's script and style, served by server/api/v1/docs/[file].get.ts
+    serverAssets: [{
+      baseName: 'swagger-ui',
+      dir: dirname(createRequire(import.meta.url).resolve('swagger-ui-dist/package.json')),
+      pattern: '{swagger-ui-bundle.js,swagger-ui.css}',
+    }],
+    // read as files into the bundle, not left as a package to import at run time
+    externals: { inline: ['swagger-ui-dist'] },
   },
   typescript: {
     strict: true,

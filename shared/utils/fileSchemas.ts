@@ -9,9 +9,11 @@ const optionalText = (max: number) => z.string().trim().max(max).nullable().opti
 
 /** The fields that may come with an upload, besides the file (multipart text fields). */
 export const UploadFields = z.object({
-  revision: optionalText(40),
-  reading: z.uuid({ error: 'Give the reading’s id' }).nullable().optional().transform(v => v ?? null),
-  finding: z.uuid({ error: 'Give the finding’s id' }).nullable().optional().transform(v => v ?? null),
+  revision: optionalText(40).meta({ description: 'attach to this revision (its label)' }),
+  reading: z.uuid({ error: 'Give the reading’s id' }).nullable().optional().transform(v => v ?? null)
+    .meta({ description: 'attach to this reading (its id); the file then belongs to the reading’s revision too' }),
+  finding: z.uuid({ error: 'Give the finding’s id' }).nullable().optional().transform(v => v ?? null)
+    .meta({ description: 'attach to this finding (its id)' }),
 })
 
 export const FileListQuery = z.object({

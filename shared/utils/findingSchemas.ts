@@ -31,11 +31,11 @@ const idField = (what: string) => z.uuid({ error: `${what} is the id of a findin
 
 export const FindingCreate = z.object({
   title: findingTitleField,
-  description: findingDescriptionField.optional(),
+  description: findingDescriptionField.optional().meta({ description: 'Markdown; rendered and sanitized when shown' }),
   severity: severityField,
-  seenOn: revisionLabelField.nullable().optional(),
-  targets: targetsField.optional(),
-})
+  seenOn: revisionLabelField.nullable().optional().meta({ description: 'the label of the revision it was seen on' }),
+  targets: targetsField.optional().meta({ description: 'keys of the targets it hurts' }),
+}).meta({ examples: [{ title: 'Connector warm after the climb', severity: 'degrades', seenOn: 'R4', targets: ['top_speed'] }] })
 
 export const FindingPatch = z.object({
   version: versionField,
@@ -57,10 +57,11 @@ export const overrideReasonField = z.string({ error: 'Give a reason for the over
  */
 export const MoveBody = z.object({
   lane: laneField,
-  before: idField('before').optional(),
-  after: idField('after').optional(),
-  version: versionField,
-  override: z.object({ reason: overrideReasonField }, { error: 'override is {reason}' }).optional(),
+  before: idField('before').optional().meta({ description: 'the id of the card the moved one goes above' }),
+  after: idField('after').optional().meta({ description: 'the id of the card the moved one goes below; with neither, to the end of the lane' }),
+  version: versionField.meta({ description: 'the version you last saw' }),
+  override: z.object({ reason: overrideReasonField }, { error: 'override is {reason}' }).optional()
+    .meta({ description: 'Owners only: enter Retest or Closed although the rule refuses; the reason is kept in the history' }),
 }).refine(b => !b.before || b.before !== b.after, { message: 'before and after name the same card', path: ['before'] })
 
 export const dueOnField = z.iso.date({ error: 'The due date is a date (YYYY-MM-DD)' })

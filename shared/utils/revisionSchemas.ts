@@ -33,10 +33,10 @@ export const RevisionBody = z.object({
   summary: summaryField.optional(),
   changes: changesField.optional(),
   /** the parent's label; omitted: the latest revision; null: none */
-  parent: revisionLabelField.nullable().optional(),
+  parent: revisionLabelField.nullable().optional().meta({ description: 'the parent’s label; omitted: the latest revision; null: none' }),
   builtOn: builtOnField.nullable().optional(),
   parameters: parametersField.optional(),
-})
+}).meta({ examples: [{ label: 'R4', summary: 'Stiffer motor mount', changes: ['Mount plate 4 mm → 6 mm'], builtOn: '2026-03-14', parameters: [{ name: 'Mount plate', value: 6, unit: 'mm' }] }] })
 
 export const RevisionPatch = z.object({
   summary: summaryField.optional(),

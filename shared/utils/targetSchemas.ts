@@ -72,15 +72,19 @@ function refineRule(t: TargetRuleInput, ctx: z.RefinementCtx) {
 export const TargetBody = z.object({
   key: targetKeyField,
   name: targetNameField,
-  unit: unitField,
+  unit: unitField.meta({ description: 'the display unit, e.g. km/h, N·m, °C (GET /api/units lists them)' }),
   comparator: comparatorField,
-  threshold: numberField('The threshold'),
-  thresholdHigh: numberField('The upper threshold').nullable().optional(),
+  threshold: numberField('The threshold').meta({ description: 'in the display unit' }),
+  thresholdHigh: numberField('The upper threshold').nullable().optional().meta({ description: 'the upper edge; required for between, ≥ threshold' }),
   stretch: numberField('The stretch goal').nullable().optional(),
-  noiseBand: numberField('The noise band').min(0, 'The noise band is 0 or more').nullable().optional(),
+  noiseBand: numberField('The noise band').min(0, 'The noise band is 0 or more').nullable().optional().meta({ description: 'the smallest change that matters' }),
   notes: notesField.optional(),
-  formula: formulaField.optional(),
+  formula: formulaField.optional().meta({
+    description: 'makes it a derived target: a formula over other targets’ keys, e.g. "wheel_torque * wheel_speed" (numbers, keys, + − * / ^, parentheses, pi, sqrt() abs() sin() cos() tan() exp() log() log10()). '
+      + 'Each key stands for that target’s pooled mean in SI; the result must be of this target’s quantity. A derived target takes no readings.',
+  }),
 }).superRefine(refineRule)
+  .meta({ examples: [{ key: 'top_speed', name: 'Top speed on the flat', unit: 'km/h', comparator: 'atLeast', threshold: 25, stretch: 28, noiseBand: 0.5 }] })
 
 /** Partial edit; the server checks the merged thresholds with targetRuleProblems. */
 export const TargetPatch = z.object({
@@ -100,4 +104,8 @@ export const TargetOrderBody = z.object({
   keys: z.array(targetKeyField, { error: 'keys: give the list of target keys' })
     .min(1, 'Give the list of target keys')
     .max(1000),
+})
+
+export const TargetListQuery = z.object({
+  archived: z.enum(['0', '1'], { error: 'archived is 0 or 1' }).optional().meta({ description: '1: archived targets too' }),
 })

@@ -160,6 +160,8 @@ export const routes: RouteCase[] = [
   // builds, targets, revisions, readings and the scoreboard
   { method: 'GET', path: '/api/units', expect: e(200, 200, 200, 200, 200, 200), prepare: () => ({ query: 'quantity=torque' }) },
   { method: 'GET', path: '/api/v1/openapi.json', expect: e(200, 200, 200, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/docs', expect: e(200, 200, 200, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/docs/:file', expect: e(200, 200, 200, 200, 200, 200), prepare: () => ({ params: { file: 'init.js' } }) },
   { method: 'GET', path: '/api/builds/:build', expect: e(401, 401, 404, 200, 200, 200) },
   { method: 'PATCH', path: '/api/builds/:build', expect: e(401, 401, 404, 403, 200, 200), prepare: w => ({ params: base(w), body: { summary: 'Matrix summary' } }) },
   { method: 'GET', path: '/api/builds/:build/targets/:key', expect: e(401, 401, 404, 200, 200, 200), prepare: async w => ({ params: { ...base(w), key: (await measuredBuild(w)).key } }) },

@@ -1,10 +1,6 @@
-import { z } from 'zod'
-
-const Query = z.object({ limit: z.coerce.number().int().min(1).max(500).default(100) })
-
 export default defineEventHandler(async (event) => {
   const { build } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
-  const { limit } = queryAs(event, Query)
+  const { limit } = queryAs(event, EventListQuery)
   const events = await loadEvents(useDb(), build.id, { limit })
   return events.map(e => ({
     id: e.id,

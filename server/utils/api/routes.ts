@@ -1,0 +1,321 @@
+import { z } from 'zod'
+import { LoginBody } from '../../../shared/utils/accountSchemas'
+import { BuildBody } from '../../../shared/utils/buildSchemas'
+import { EventListQuery, SubscriptionBody } from '../../../shared/utils/digestSchemas'
+import { UploadFields } from '../../../shared/utils/fileSchemas'
+import { FindingCreate, FindingListQuery, MoveBody } from '../../../shared/utils/findingSchemas'
+import { ReadingBody } from '../../../shared/utils/readingSchemas'
+import { RevisionBody } from '../../../shared/utils/revisionSchemas'
+import { TargetBody, TargetListQuery } from '../../../shared/utils/targetSchemas'
+import {
+  BuildEventOut, BuildOut, FileCreatedOut, FindingOut, MoveResultOut, ReadingCreatedOut, RevisionOut,
+  ScoreboardOut, SignedInOut, SubscriptionOut, TargetOut, TeamOut,
+} from './responses'
+
+// The public API, one entry per route file: the OpenAPI document (./document.ts) is generated from
+// this list. `body` and `query` are the very schemas the handler passes to bodyAs / queryAs
+// (tests/api/openapi.test.ts reads the handlers to check it). Add a route here with its handler.
+
+export type ApiMethod = 'get' | 'post' | 'put' | 'patch' | 'delete'
+export type ApiAccess = 'public' | 'session' | 'session-or-rig'
+
+export const API_TAGS = {
+  'Sign-in': 'A session for the calls below; a rig sends its token instead',
+  'Builds': 'Teams and their builds',
+  'Targets': 'The numbers a build has to reach, in their display units',
+  'Revisions and readings': 'Each revision of the build, and what was measured on it',
+  'Findings': 'Problems seen in testing and their place on the board',
+  'Files': 'Evidence: photos, logs, instrument files',
+  'Reviewers': 'What reviewers hear about, and how often',
+  'This reference': 'The document itself',
+} as const
+export type ApiTag = keyof typeof API_TAGS
+
+/** An answer: a zod schema (JSON), `raw` (bytes), or none (`schema` absent). */
+export interface ApiAnswer {
+  description: string
+  schema?: z.ZodType
+  /** a list of `schema` items */
+  list?: boolean
+  raw?: string
+}
+
+export interface ApiRoute {
+  method: ApiMethod
+  /** OpenAPI style: /api/v1/builds/{build} */
+  path: string
+  /** the group the reference page lists it under (API_TAGS) */
+  tag: ApiTag
+  summary: string
+  description?: string
+  access: ApiAccess
+  /** path parameters: name → description */
+  params?: Record<string, string>
+  query?: z.ZodObject
+  /** a JSON body */
+  body?: z.ZodType
+  /** a multipart/form-data body: its text fields, and the file part */
+  form?: { fields: z.ZodObject, file: z.ZodObject }
+  /** parameters read without a zod schema (headers, a flag) */
+  otherParams?: { name: string, in: 'query' | 'header', description: string, schema?: Record<string, unknown> }[]
+  /** the success answers, by status */
+  ok: Record<number, ApiAnswer>
+  /** the error statuses; a string replaces the usual description */
+  errors: (number | [number, string])[]
+  /** the component name of the body's schema in the document */
+  bodyName?: string
+}
+
+const build = { build: 'The build’s id or slug' }
+
+const FilePart = z.object({
+  file: z.string().meta({ format: 'binary', description: 'the file; its name is kept for display only, its type is sniffed from its bytes' }),
+})
+
+export const apiRoutes: ApiRoute[] = [
+  {
+    method: 'post',
+    path: '/api/auth/login',
+    tag: 'Sign-in',
+    summary: 'Sign in; keep the session cookie for the calls below',
+    access: 'public',
+    body: LoginBody,
+    bodyName: 'Login',
+    ok: { 200: { description: 'Signed in', schema: SignedInOut } },
+    errors: [400, 401, [429, 'Too many failed sign-ins (Retry-After)']],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/teams',
+    tag: 'Builds',
+    summary: 'The caller’s teams with their role',
+    access: 'session',
+    ok: { 200: { description: 'OK', schema: TeamOut, list: true } },
+    errors: [401, 403],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds',
+    tag: 'Builds',
+    summary: 'Builds the caller can see (a rig token: its own build)',
+    access: 'session-or-rig',
+    ok: { 200: { description: 'OK', schema: BuildOut, list: true } },
+    errors: [401],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds',
+    tag: 'Builds',
+    summary: 'Create a build (Engineer or Owner of the team)',
+    access: 'session',
+    body: BuildBody,
+    bodyName: 'BuildCreate',
+    ok: { 201: { description: 'Created', schema: BuildOut } },
+    errors: [400, 401, 403, 404, 409],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}',
+    tag: 'Builds',
+    summary: 'One build and the caller’s role',
+    access: 'session-or-rig',
+    params: build,
+    ok: { 200: { description: 'OK', schema: BuildOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/targets',
+    tag: 'Targets',
+    summary: 'The build’s targets in strip order',
+    access: 'session-or-rig',
+    params: build,
+    query: TargetListQuery,
+    ok: { 200: { description: 'OK', schema: TargetOut, list: true } },
+    errors: [400, 401, 404],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/targets',
+    tag: 'Targets',
+    summary: 'Create a target; thresholds are given in its display unit',
+    description: 'With `formula` the target is derived: 400 for a formula that can’t be read, 422 naming an unknown key, both quantities of a dimension mismatch, or the circle of formulas.',
+    access: 'session-or-rig',
+    params: build,
+    body: TargetBody,
+    bodyName: 'TargetCreate',
+    ok: { 201: { description: 'Created', schema: TargetOut } },
+    errors: [400, 401, 403, 404, 409, 422],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/revisions',
+    tag: 'Revisions and readings',
+    summary: 'Create a revision',
+    access: 'session-or-rig',
+    params: build,
+    body: RevisionBody,
+    bodyName: 'RevisionCreate',
+    ok: { 201: { description: 'Created', schema: RevisionOut } },
+    errors: [400, 401, 403, 404, 409],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/readings',
+    tag: 'Revisions and readings',
+    summary: 'Record a reading; its statistics come back in the target’s display unit',
+    description: 'Several readings of one target on one revision are pooled into one sample set. 404 for a target or revision not in the build; 409 for a frozen revision, an archived target or a derived target (it takes no readings); 422 for an unknown unit or one of another quantity.',
+    access: 'session-or-rig',
+    params: build,
+    body: ReadingBody,
+    bodyName: 'ReadingCreate',
+    ok: { 201: { description: 'Created', schema: ReadingCreatedOut } },
+    errors: [400, 401, 403, 404, 409, 422, [413, 'The request body is too large']],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/scoreboard',
+    tag: 'Targets',
+    summary: 'Every target with its status, per-revision history and forecast: the target strip and the readings matrix in one answer',
+    description: 'Derived targets are evaluated per revision from their inputs’ pooled means; a revision where that fails is listed in `cantEvaluate` with the reason (never an error).',
+    access: 'session-or-rig',
+    params: build,
+    ok: { 200: { description: 'OK', schema: ScoreboardOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/findings',
+    tag: 'Findings',
+    summary: 'The build’s findings by lane: safety first, then by rank',
+    access: 'session-or-rig',
+    params: build,
+    query: FindingListQuery,
+    ok: { 200: { description: 'OK', schema: FindingOut, list: true } },
+    errors: [400, 401, 404],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/findings',
+    tag: 'Findings',
+    summary: 'File a finding; it lands at the bottom of Spotted',
+    access: 'session-or-rig',
+    params: build,
+    body: FindingCreate,
+    bodyName: 'FindingCreate',
+    ok: { 201: { description: 'Created', schema: FindingOut } },
+    errors: [400, 401, 403, 404],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/findings/{id}/move',
+    tag: 'Findings',
+    summary: 'Move a finding to a lane, between two cards',
+    description: 'Retest needs a fix that landed in a revision. Closed needs a reading on a revision after the one it was seen on (and not before its fix landed), with each target it hurts Met there. An Owner may override either rule with a reason.',
+    access: 'session-or-rig',
+    params: { id: 'the finding’s id' },
+    body: MoveBody,
+    bodyName: 'Move',
+    ok: { 200: { description: 'OK', schema: MoveResultOut } },
+    errors: [
+      400, 401, 403, 404,
+      [409, 'The version is stale (`data.current` holds the finding as it is now), or the named neighbours moved'],
+      [422, 'A lane rule refuses the move; the message says why'],
+    ],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/files',
+    tag: 'Files',
+    summary: 'Upload evidence (a photo, footage, a log, an instrument CSV), optionally attached to a revision, reading or finding',
+    description: 'Send the fields before the file so a wrong attachment is refused before the upload. The file streams to storage; '
+      + 'past the size limit or the team’s storage quota the answer is 413 and nothing is kept.',
+    access: 'session-or-rig',
+    params: build,
+    form: { fields: UploadFields, file: FilePart },
+    bodyName: 'FileUpload',
+    ok: { 201: { description: 'Created', schema: FileCreatedOut } },
+    errors: [
+      400, 401, 403, 404,
+      [413, 'Larger than the size limit, or the team’s storage quota would be exceeded'],
+      [422, 'The reading named is on another revision than the one named'],
+      [503, 'The file store refused or could not be reached; nothing is kept'],
+    ],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/files/{id}',
+    tag: 'Files',
+    summary: 'The bytes of a file of a build the caller can see',
+    description: 'Images, video, audio, PDF, plain text and CSV are served inline; everything else as an attachment. HTML, SVG, XML and scripts are always an attachment of type application/octet-stream. '
+      + 'Content-Disposition carries the name (filename* in UTF-8 when needed).',
+    access: 'session-or-rig',
+    params: { id: 'the file’s id' },
+    otherParams: [
+      { name: 'download', in: 'query', description: '1: always as an attachment', schema: { type: 'string', enum: ['1'] } },
+      { name: 'Range', in: 'header', description: 'one byte range, e.g. bytes=0-1023 or bytes=-500' },
+      { name: 'If-None-Match', in: 'header', description: 'the ETag you hold' },
+    ],
+    ok: {
+      200: { description: 'The whole file', raw: '*/*' },
+      206: { description: 'The byte range asked for (Content-Range)', raw: '*/*' },
+      304: { description: 'Not modified: If-None-Match matched the ETag' },
+    },
+    errors: [
+      401, 404,
+      [416, 'The range starts past the end of the file (Content-Range: bytes */size)'],
+      [503, 'The file store can’t be read right now'],
+    ],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/events',
+    tag: 'Reviewers',
+    summary: 'What happened to the build that reviewers hear about, newest first',
+    access: 'session-or-rig',
+    params: build,
+    query: EventListQuery,
+    ok: { 200: { description: 'OK', schema: BuildEventOut, list: true } },
+    errors: [400, 401, 404],
+  },
+  {
+    method: 'put',
+    path: '/api/v1/builds/{build}/subscription',
+    tag: 'Reviewers',
+    summary: 'The caller’s own digest subscription to the build (session only)',
+    access: 'session',
+    params: build,
+    body: SubscriptionBody,
+    bodyName: 'Subscription',
+    ok: { 200: { description: 'OK', schema: SubscriptionOut } },
+    errors: [400, 401, 403, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/openapi.json',
+    tag: 'This reference',
+    summary: 'This document',
+    access: 'public',
+    ok: { 200: { description: 'The OpenAPI 3.1 document' } },
+    errors: [],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/docs',
+    tag: 'This reference',
+    summary: 'This document as a page to browse and try',
+    access: 'public',
+    ok: { 200: { description: 'An HTML page', raw: 'text/html' } },
+    errors: [],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/docs/{file}',
+    tag: 'This reference',
+    summary: 'The script and style files of the page above',
+    access: 'public',
+    params: { file: 'one of the page’s files' },
+    ok: { 200: { description: 'The file', raw: '*/*' }, 304: { description: 'Not modified' } },
+    errors: [404],
+  },
+]
