@@ -1,8 +1,11 @@
-import { createHash, createHmac } from 'node:crypto'
+import { createHash } from 'node:crypto'
 import { existsSync, rmSync } from 'node:fs'
 import { createServer, request, type IncomingMessage, type ServerResponse } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { join } from 'node:path'
+import { Hash } from '@smithy/core/serde'
+import { SignatureV4 } from '@smithy/signature-v4'
+import type { HttpRequest, QueryParameterBag } from '@smithy/types'
 
 // A gate in front of s3rver for the S3 tests. s3rver 3.7.1 (lib/middleware/authentication.js)
 // checks of a Signature Version 4 request only that the access key id is one of its own, that
@@ -11,8 +14,9 @@ import { join } from 'node:path'
 // version 4 calculation is unimplemented") and never hashes the payload ("skip payload
 // verification"). It also answers AbortMultipartUpload (DELETE ?uploadId) with a 405 and keeps the
 // parts. So the app speaks to this gate, which
-// - recomputes each request's signature from what arrived on the wire (its own implementation,
-//   not server/utils/s3.ts) and refuses a mismatch with 403 SignatureDoesNotMatch, as S3 does;
+// - signs each request again, from what arrived on the wire, with @smithy/signature-v4 (the AWS
+//   signer, fed the headers the request says it signed and the key of its key id) and refuses a
+//   mismatch with 403 SignatureDoesNotMatch, as S3 does;
 // - hashes the body and refuses one that isn't what x-amz-content-sha256 says
 //   (XAmzContentSHA256Mismatch); UNSIGNED-PAYLOAD and streaming payloads are refused, since
 //   the client never sends them;
@@ -37,7 +41,6 @@ export interface S3Gate {
   close: () => Promise<void>
 }
 
-const rfc3986 = (s: string) => encodeURIComponent(s).replace(/[!'()*]/g, c => `%${c.charCodeAt(0).toString(16).toUpperCase()}`)
 const sha256 = (b: Buffer | string) => createHash('sha256').update(b).digest('hex')
 
 function readBody(req: IncomingMessage): Promise<Buffer> {
@@ -47,8 +50,19 @@ function readBody(req: IncomingMessage): Promise<Buffer> {
   })
 }
 
+/** The query string as the signer takes it: names to decoded values (a repeated name to a list). */
+function queryBag(raw: string): QueryParameterBag {
+  const bag: Record<string, string | string[]> = {}
+  for (const pair of raw.split('&').filter(Boolean)) {
+    const [k, v = ''] = pair.split(/=(.*)/s).map(decodeURIComponent) as [string, string?]
+    const had = bag[k]
+    bag[k] = had === undefined ? v : [...(Array.isArray(had) ? had : [had]), v]
+  }
+  return bag
+}
+
 /** Why S3 would refuse the request (an error code and message), or null when it is signed right. */
-export function checkSigV4(req: { method: string, rawUrl: string, headers: IncomingMessage['headers'] }, body: Buffer, secrets: Record<string, string>, region: string, now = new Date()): [string, string] | null {
+export async function checkSigV4(req: { method: string, rawUrl: string, headers: IncomingMessage['headers'] }, body: Buffer, secrets: Record<string, string>, region: string, now = new Date()): Promise<[string, string] | null> {
   const auth = String(req.headers.authorization ?? '')
   const m = /^AWS4-HMAC-SHA256 Credential=([^/,]+)\/(\d{8})\/([^/,]+)\/s3\/aws4_request, ?SignedHeaders=([a-z0-9;-]+), ?Signature=([0-9a-f]{64})$/.exec(auth)
   if (!m) return ['AccessDenied', 'No AWS4-HMAC-SHA256 Authorization header of the expected form']
@@ -59,8 +73,8 @@ export function checkSigV4(req: { method: string, rawUrl: string, headers: Incom
   const amzDate = String(req.headers['x-amz-date'] ?? '')
   const when = /^(\d{4})(\d{2})(\d{2})T(\d{2})(\d{2})(\d{2})Z$/.exec(amzDate)
   if (!when || amzDate.slice(0, 8) !== day) return ['AccessDenied', 'x-amz-date is missing, malformed or not the credential’s day']
-  const at = Date.UTC(+when[1]!, +when[2]! - 1, +when[3]!, +when[4]!, +when[5]!, +when[6]!)
-  if (Math.abs(now.getTime() - at) > 15 * 60_000) return ['RequestTimeTooSkewed', 'x-amz-date is more than 15 minutes off']
+  const at = new Date(Date.UTC(+when[1]!, +when[2]! - 1, +when[3]!, +when[4]!, +when[5]!, +when[6]!))
+  if (Math.abs(now.getTime() - at.getTime()) > 15 * 60_000) return ['RequestTimeTooSkewed', 'x-amz-date is more than 15 minutes off']
   const signed = signedList.split(';')
   for (const required of ['host', 'x-amz-content-sha256', 'x-amz-date']) {
     if (!signed.includes(required)) return ['AccessDenied', `${required} is not among the signed headers`]
@@ -69,25 +83,24 @@ export function checkSigV4(req: { method: string, rawUrl: string, headers: Incom
   if (!/^[0-9a-f]{64}$/.test(declared)) return ['InvalidRequest', `x-amz-content-sha256 is ${declared || 'missing'}; only a payload hash is accepted here`]
   if (declared !== sha256(body)) return ['XAmzContentSHA256Mismatch', 'The provided x-amz-content-sha256 header does not match what was computed']
 
-  const [rawPath, rawQuery = ''] = req.rawUrl.split(/\?(.*)/s) as [string, string?]
-  const path = rawPath.split('/').map(seg => rfc3986(decodeURIComponent(seg))).join('/')
-  const query = rawQuery.split('&').filter(Boolean)
-    .map((pair) => {
-      const [k, v = ''] = pair.split(/=(.*)/s) as [string, string?]
-      return [rfc3986(decodeURIComponent(k)), rfc3986(decodeURIComponent(v))] as const
-    })
-    .sort(([a, av], [b, bv]) => (a === b ? (av < bv ? -1 : av > bv ? 1 : 0) : a < b ? -1 : 1))
-    .map(([k, v]) => `${k}=${v}`)
-    .join('&')
-  const headerLines = signed.map((name) => {
+  // the request again, with only the headers it says it signed, signed with the key id's secret
+  const [path, rawQuery = ''] = req.rawUrl.split(/\?(.*)/s) as [string, string?]
+  const headers = Object.fromEntries(signed.map((name) => {
     const value = req.headers[name]
-    return `${name}:${(Array.isArray(value) ? value.join(',') : String(value ?? '')).trim().replace(/\s+/g, ' ')}\n`
-  }).join('')
-  const canonical = [req.method, path, query, headerLines, signedList, declared].join('\n')
-  const toSign = ['AWS4-HMAC-SHA256', amzDate, `${day}/${region}/s3/aws4_request`, sha256(canonical)].join('\n')
-  let key: Buffer = createHmac('sha256', `AWS4${secret}`).update(day).digest()
-  for (const part of [region, 's3', 'aws4_request']) key = createHmac('sha256', key).update(part).digest()
-  if (createHmac('sha256', key).update(toSign).digest('hex') !== signature) {
+    return [name, Array.isArray(value) ? value.join(',') : String(value ?? '')]
+  }))
+  const signer = new SignatureV4({
+    service: 's3',
+    region,
+    credentials: { accessKeyId: keyId, secretAccessKey: secret },
+    sha256: Hash.bind(null, 'sha256'),
+    // S3 signs the path as sent (its segments encoded once), not encoded again
+    uriEscapePath: false,
+  })
+  const unsigned = { method: req.method, protocol: 'http:', hostname: String(req.headers.host ?? ''), path, query: queryBag(rawQuery), headers } as HttpRequest
+  const resigned = await signer.sign(unsigned, { signingDate: at, signableHeaders: new Set(signed) })
+  const expected = /SignedHeaders=([a-z0-9;-]+), ?Signature=([0-9a-f]{64})$/.exec(String(resigned.headers.authorization))
+  if (!expected || expected[1] !== signedList || expected[2] !== signature) {
     return ['SignatureDoesNotMatch', 'The request signature we calculated does not match the signature you provided']
   }
   return null
@@ -116,7 +129,7 @@ export async function startS3Gate(opts: { upstream: string, dataDir: string, reg
     try {
       const body = await readBody(req)
       entry.bytes = body.length
-      const refused = checkSigV4({ method: req.method!, rawUrl: req.url!, headers: req.headers }, body, opts.secrets, opts.region)
+      const refused = await checkSigV4({ method: req.method!, rawUrl: req.url!, headers: req.headers }, body, opts.secrets, opts.region)
       if (refused) {
         entry.refused = refused[0]
         s3Error(res, refused[0] === 'InvalidRequest' ? 400 : 403, ...refused)
@@ -136,6 +149,8 @@ export async function startS3Gate(opts: { upstream: string, dataDir: string, reg
       }
       const headers = { ...req.headers, 'content-length': String(body.length) }
       delete headers['transfer-encoding']
+      // the body is here already: s3rver needn't answer 100 Continue to it
+      delete headers.expect
       const forward = request({ host: upstream.hostname, port: upstream.port, method: req.method, path: req.url, headers }, (up) => {
         res.writeHead(up.statusCode!, up.headers)
         up.pipe(res)
