@@ -92,7 +92,7 @@ export RATCHET_TEST_APP_PID="$APP_PID" RATCHET_TEST_MAILDEV_PID="$MAILDEV_PID"
 export RATCHET_TEST_APP_PORT="$APP_PORT" RATCHET_TEST_SMTP_PORT="$SMTP_PORT" RATCHET_TEST_MAIL_WEB_PORT="$MAIL_WEB_PORT"
 export RATCHET_TEST_PIDFILE="$EXTRA_PIDS"
 
-step "vitest: unit, api, browser"
+step "vitest: unit, nuxt (components), api, browser"
 status=0
 npx vitest run "$@" || status=$?
 step "done (exit $status)"

@@ -254,3 +254,21 @@ export interface BuildDetail {
   role: Role
   team: { id: string, slug: string, name: string }
 }
+
+/** GET /api/teams/:team */
+export interface TeamInfo {
+  id: string
+  name: string
+  slug: string
+  personal: boolean
+  demo: boolean
+  role: Role
+}
+
+/** GET /api/units */
+export interface UnitOption {
+  unit: string
+  quantity: string
+  quantityLabel: string
+  label: string
+}

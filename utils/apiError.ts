@@ -14,23 +14,3 @@ export function apiError(err: unknown): ApiErrorInfo {
   const message = data?.message ?? (status ? `The server answered ${status}` : 'The server could not be reached; check your connection')
   return { status, message, fields: data?.data?.fields ?? {} }
 }
-
-/**
- * Form state with live validation by a shared zod schema: `errors` per field once touched,
- * plus the server's answer after submit.
- */
-export function useFormErrors() {
-  const fieldErrorsRef = ref<Record<string, string>>({})
-  const formError = ref('')
-  function fromServer(err: unknown) {
-    const info = apiError(err)
-    formError.value = info.message
-    fieldErrorsRef.value = info.fields
-    return info
-  }
-  function reset() {
-    formError.value = ''
-    fieldErrorsRef.value = {}
-  }
-  return { fieldErrors: fieldErrorsRef, formError, fromServer, reset }
-}

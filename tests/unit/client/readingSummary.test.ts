@@ -1,0 +1,23 @@
+import { describe, expect, it } from 'vitest'
+import type { ReadingCreated } from '../../../shared/types/api'
+import { readingSummary } from '../../../utils/readingSummary'
+
+const stats = { sd: 0.3, uA: 0.1, uB: null, u: 0.1, nuEff: 4 }
+
+describe('readingSummary', () => {
+  it('states the reading alone when the revision had no other reading of the target', () => {
+    const r: ReadingCreated = {
+      reading: { id: 'r1', unit: 'km/h', status: 'met', n: 5, mean: 24.3132, ci95: [24.0932, 24.5332], ...stats },
+      pooled: null,
+    }
+    expect(readingSummary(r)).toBe('n = 5, 24.31 ± 0.22 km/h — Met')
+  })
+
+  it('adds the pooled cell when there was', () => {
+    const r: ReadingCreated = {
+      reading: { id: 'r2', unit: 'N·m', status: 'short', n: 3, mean: 38.5, ci95: null, ...stats },
+      pooled: { n: 8, mean: 40.05, ci95: [39.15, 40.95], readings: 2, status: 'marginal', ...stats },
+    }
+    expect(readingSummary(r)).toBe('n = 3, 38.5 N·m — Short. Pooled with the revision\'s other readings: n = 8, 40.05 ± 0.90 N·m — Marginal')
+  })
+})
