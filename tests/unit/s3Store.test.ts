@@ -3,7 +3,7 @@ import { createServer, type IncomingMessage, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { Readable } from 'node:stream'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { S3Store } from '../../server/utils/s3'
+import { S3Store } from '../../server/utils/files/s3'
 import { createFileStore } from '../../server/utils/files/storage'
 
 // The S3 store (the AWS SDK's client and lib-storage's Upload) against a small in-process
