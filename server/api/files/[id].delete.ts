@@ -1,5 +1,0 @@
-export default defineEventHandler(async (event) => {
-  await deleteFile(event, uuidParam(event, 'id'))
-  setResponseStatus(event, 204)
-  return null
-})
