@@ -166,7 +166,7 @@ export const filesSection = {
         const down = await download(ctx, up.id)
         peakDown = Math.max(peakDown, watch.stop())
         if (down.sha256 !== sha256 || down.bytes !== SIZE) throw new Error('download: the bytes differ from the upload')
-        await call(ctx, 'DELETE', `/api/files/${up.id}`)
+        await call(ctx, 'DELETE', `/api/v1/files/${up.id}`)
         ups.push(up.seconds)
         downs.push(down.seconds)
         // a copy just before each upload: the disk's speed drifts as the page cache fills
@@ -174,7 +174,7 @@ export const filesSection = {
         const byCurl = await curlRoundTrip(ctx, build.slug)
         if (byCurl) {
           if (byCurl.sha256 !== sha256) throw new Error('curl upload: the server’s sha256 differs from the file’s')
-          await call(ctx, 'DELETE', `/api/files/${byCurl.id}`)
+          await call(ctx, 'DELETE', `/api/v1/files/${byCurl.id}`)
           curlUps.push(byCurl.up)
           curlDowns.push(byCurl.down)
         }
@@ -208,10 +208,10 @@ export const filesSection = {
     form.append('file', new Blob([csv]), 'bench-100k.csv')
     const file = await call(ctx, 'POST', `/api/v1/builds/${build.slug}/files`, form) as { id: string }
     let started = performance.now()
-    await call(ctx, 'GET', `/api/builds/${build.slug}/import/preview?file=${file.id}`)
+    await call(ctx, 'GET', `/api/v1/builds/${build.slug}/import/preview?file=${file.id}`)
     const preview = (performance.now() - started) / 1000
     started = performance.now()
-    const imported = await call(ctx, 'POST', `/api/builds/${build.slug}/import`, { file: file.id, target: key, valueColumn: 'torque_nm', revisionColumn: 'rev', unit: 'N·m', resolution: 0.001 }) as { rows: number, readings: unknown[] }
+    const imported = await call(ctx, 'POST', `/api/v1/builds/${build.slug}/import`, { file: file.id, target: key, valueColumn: 'torque_nm', revisionColumn: 'rev', unit: 'N·m', resolution: 0.001 }) as { rows: number, readings: unknown[] }
     const seconds = (performance.now() - started) / 1000
     console.log(`  CSV import of ${imported.rows.toLocaleString('en')} rows (${(csv.length / MB).toFixed(1)} MB) into ${imported.readings.length} readings: ${seconds.toFixed(2)} s `
       + `(${Math.round(imported.rows / seconds).toLocaleString('en')} rows/s); its preview ${preview.toFixed(2)} s`)

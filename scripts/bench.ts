@@ -359,7 +359,7 @@ const boardSection: Section = {
     console.log(`  seeded ${ids.length} findings in ${((performance.now() - started) / 1000).toFixed(1)} s`)
     const team = (await ctx.db('builds').where({ id: build.id }).first('team_id'))!
 
-    const board = await timeRequests(ctx, `/api/builds/${build.slug}/findings`)
+    const board = await timeRequests(ctx, `/api/v1/builds/${build.slug}/findings/board`)
     const list = await timeRequests(ctx, `/api/v1/builds/${build.slug}/findings`)
     for (let i = 0; i < 3; i++) await rawBoard(ctx.db, build.id, team.team_id)
     const raw: number[] = []
@@ -420,7 +420,7 @@ const boardSection: Section = {
 
     console.log()
     console.log(`  board of ${rows} findings              server median / p95        client median   JSON`)
-    console.log(`  GET /api/builds/:build/findings       ${`${ms(board.app.median)} / ${ms(board.app.p95)}`.padEnd(27)}${ms(board.wall.median).padEnd(16)}${(board.bytes / 1e6).toFixed(2)} MB`)
+    console.log(`  GET …/:build/findings/board           ${`${ms(board.app.median)} / ${ms(board.app.p95)}`.padEnd(27)}${ms(board.wall.median).padEnd(16)}${(board.bytes / 1e6).toFixed(2)} MB`)
     console.log(`  GET /api/v1/builds/:build/findings    ${`${ms(list.app.median)} / ${ms(list.app.p95)}`.padEnd(27)}${ms(list.wall.median).padEnd(16)}${(list.bytes / 1e6).toFixed(2)} MB`)
     console.log(`  raw SQL of the board's rows           ${ms(rawSummary.median)} / ${ms(rawSummary.p95)}   (the board request's own queries, summed: ${ms(board.sql.median)})`)
     console.log(`  move between free lanes (${moveTimes.length})        ${ms(move.median)} / ${ms(move.p95)}`)

@@ -38,7 +38,7 @@ export const useBoardStore = defineStore('board', () => {
   const request = useRequestFetch()
 
   async function load(build: string) {
-    boards.value[build] = await request<BoardData>(`/api/builds/${encodeURIComponent(build)}/findings`)
+    boards.value[build] = await request<BoardData>(`/api/v1/builds/${encodeURIComponent(build)}/findings/board`)
     return true
   }
 

@@ -22,7 +22,7 @@ export const useScoreboardStore = defineStore('scoreboard', () => {
     const byKey = new Map(before.map(t => [t.key, t]))
     scoreboard.targets = keys.map(k => byKey.get(k)).filter((t): t is ScoreTarget => Boolean(t))
     try {
-      await $fetch(`/api/builds/${encodeURIComponent(build)}/targets/order`, { method: 'POST', body: { keys } })
+      await $fetch(`/api/v1/builds/${encodeURIComponent(build)}/targets/order`, { method: 'POST', body: { keys } })
     }
     catch (err) {
       scoreboard.targets = before

@@ -220,7 +220,7 @@ export interface ParameterDiff {
   differs: boolean
 }
 
-/** GET /api/builds/:build/compare?a=…&b=… (and a revision against its parent). */
+/** GET /api/v1/builds/:build/compare?a=…&b=… (and a revision against its parent). */
 export interface Comparison {
   build: { id: string, slug: string, name: string }
   a: RevisionView
@@ -252,6 +252,8 @@ export interface BuildDetail {
   archivedAt: string | null
   createdAt: string
   role: Role
+  /** the team's id, as API v1 has always answered it; `team` carries its slug and name too */
+  teamId: string
   team: { id: string, slug: string, name: string }
 }
 

@@ -29,7 +29,7 @@ export interface FileView extends FileCreated {
   canDelete: boolean
 }
 
-/** GET /api/builds/:build/files */
+/** GET /api/v1/builds/:build/files */
 export interface FileList {
   items: FileView[]
   total: number
@@ -48,7 +48,7 @@ export interface StorageUsage {
   builds: { slug: string, name: string, usedBytes: number, files: number }[]
 }
 
-/** GET /api/builds/:build/import/preview */
+/** GET /api/v1/builds/:build/import/preview */
 export interface CsvPreview {
   file: { id: string, name: string, size: number }
   delimiter: string
@@ -65,7 +65,7 @@ export interface CsvPreview {
   problem: string | null
 }
 
-/** POST /api/builds/:build/import */
+/** POST /api/v1/builds/:build/import */
 export interface CsvImported {
   file: { id: string, name: string }
   rows: number

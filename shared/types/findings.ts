@@ -63,7 +63,7 @@ export interface BoardTarget {
   caution: boolean
 }
 
-/** GET /api/builds/:build/findings */
+/** GET /api/v1/builds/:build/findings/board */
 export interface BoardData {
   build: { id: string, slug: string, name: string }
   role: Role
@@ -100,7 +100,7 @@ export interface FindingTargetInfo extends BoardTarget {
   status: 'met' | 'marginal' | 'short' | 'untested'
 }
 
-/** GET /api/findings/:id */
+/** GET /api/v1/findings/:id */
 export interface FindingDetail extends FindingSummary, CardFacts {
   descriptionHtml: string
   build: { id: string, slug: string, name: string }
@@ -118,7 +118,7 @@ export interface FindingDetail extends FindingSummary, CardFacts {
   override: { reason: string, by: string | null } | null
 }
 
-/** GET /api/builds/:build/findings/open: per target key, the open findings that hurt it. */
+/** GET /api/v1/builds/:build/findings/open: per target key, the open findings that hurt it. */
 export interface OpenFindingsByTarget {
   /** the caller may file findings on this build */
   canFile: boolean

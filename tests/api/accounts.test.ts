@@ -74,7 +74,7 @@ describe('sessions', () => {
     const value = client.cookie.split('=').slice(1).join('=')
     tampered.cookie = `nuxt-session=${value.slice(0, -6)}AAAAAA`
     const before = await counts()
-    expect((await tampered.post('/api/teams', { name: 'Sneaky' })).status).toBe(401)
+    expect((await tampered.post('/api/v1/teams', { name: 'Sneaky' })).status).toBe(401)
     expect(await counts()).toEqual(before)
   })
 
@@ -105,7 +105,7 @@ describe('teams and members', () => {
   it('creates more teams; an Owner changes roles; the last Owner cannot leave or be demoted', async () => {
     const owner = await signUp()
     const other = await signUp()
-    const team = await owner.client.post('/api/teams', { name: 'Dyno Crew' })
+    const team = await owner.client.post('/api/v1/teams', { name: 'Dyno Crew' })
     expect(team.status).toBe(201)
     expect(team.body.slug).toMatch(/^dyno-crew/)
     await testDb()('memberships').insert({ team_id: team.body.id, user_id: other.user.id, role: 'reviewer' })

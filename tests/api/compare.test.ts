@@ -49,7 +49,7 @@ describe('comparing revisions', () => {
   })
   afterAll(closeTestDb)
 
-  const compare = (a: string, b: string, client = w.reviewer.client, build = slug) => client.get(`/api/builds/${build}/compare?a=${encodeURIComponent(a)}&b=${encodeURIComponent(b)}`)
+  const compare = (a: string, b: string, client = w.reviewer.client, build = slug) => client.get(`/api/v1/builds/${build}/compare?a=${encodeURIComponent(a)}&b=${encodeURIComponent(b)}`)
   const row = (body: any, key: string) => body.targets.find((t: { target: { key: string } }) => t.target.key === key)
 
   it('R1 → R3: Welch between the two pooled cells, both directions of movement (p = 0.021), and a steady one (p = 0.149)', async () => {
@@ -109,13 +109,13 @@ describe('comparing revisions', () => {
     await newRevision(w.outsider.client, w.foreignBuild.slug, 'R1')
     expect((await compare('R1', 'R1', w.owner.client, w.foreignBuild.slug)).status).toBe(404)
     expect((await compare('R1', 'R3', w.outsider.client)).status).toBe(404)
-    const missing = await w.reviewer.client.get(`/api/builds/${slug}/compare?a=R1`)
+    const missing = await w.reviewer.client.get(`/api/v1/builds/${slug}/compare?a=R1`)
     expect(missing.status).toBe(400)
     expect(missing.body.message).toMatch(/^b: /)
   })
 
   it('a revision\'s page shows what it moved against its parent, not the revision before it in order', async () => {
-    const r3 = (await w.reviewer.client.get(`/api/builds/${slug}/revisions/R3`)).body
+    const r3 = (await w.reviewer.client.get(`/api/v1/builds/${slug}/revisions/R3`)).body
     expect(r3.moved.a.label).toBe('R1')
     expect(r3.moved.b.label).toBe('R3')
     const gain = row(r3.moved, 'gain')
@@ -129,10 +129,10 @@ describe('comparing revisions', () => {
   })
 
   it('when the parent lacks a reading of a target, the page says so', async () => {
-    const r4 = (await w.reviewer.client.get(`/api/builds/${slug}/revisions/R4`)).body
+    const r4 = (await w.reviewer.client.get(`/api/v1/builds/${slug}/revisions/R4`)).body
     expect(r4.moved.a.label).toBe('R2')
     expect(row(r4.moved, 'slip')).toMatchObject({ a: null, movement: null, note: 'R2 has no reading of this target' })
-    const r1 = (await w.reviewer.client.get(`/api/builds/${slug}/revisions/R1`)).body
+    const r1 = (await w.reviewer.client.get(`/api/v1/builds/${slug}/revisions/R1`)).body
     expect(r1.moved).toBeNull()
   })
 
@@ -142,14 +142,14 @@ describe('comparing revisions', () => {
     const r3 = await testDb()('revisions').where({ build_id: buildId, label: 'R3' }).first('id')
     await testDb()('fixes').insert({ finding_id: finding.body.id, description: 'Stiffer spring', state: 'landed', landed_revision_id: r3.id })
 
-    const detail = (await w.reviewer.client.get(`/api/builds/${slug}/targets/gain`)).body
+    const detail = (await w.reviewer.client.get(`/api/v1/builds/${slug}/targets/gain`)).body
     // gain: R1 A1, R2 A1 + 100 (a real rise), R3 A2 (a real fall from R2)
     expect(detail.movers.map((m: { revision: string }) => m.revision)).toEqual(['R2', 'R3', 'R1'])
     expect(detail.movers[0]).toMatchObject({ movement: 'gained', real: true, parent: 'R1' })
     expect(detail.movers[1]).toMatchObject({ movement: 'slipped', real: true, fixes: [{ description: 'Stiffer spring', revision: 'R3', targets: ['gain'], finding: { title: 'Gain too low' } }] })
     expect(detail.movers[2]).toMatchObject({ movement: null })
     expect(detail.revisions).toEqual(['R1', 'R2', 'R3', 'R4'])
-    const page = (await w.reviewer.client.get(`/api/builds/${slug}/revisions/R3`)).body
+    const page = (await w.reviewer.client.get(`/api/v1/builds/${slug}/revisions/R3`)).body
     expect(page.fixesLanded.map((f: { description: string }) => f.description)).toEqual(['Stiffer spring'])
   })
 })

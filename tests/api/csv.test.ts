@@ -24,18 +24,18 @@ describe('CSV import and export', () => {
     return { key: t.key, targetId: t.id, r1: r1.label, r2: r2.label }
   }
 
-  const importCsv = (body: Record<string, unknown>, c = w.engineer.client) => c.post(`/api/builds/${b()}/import`, body)
+  const importCsv = (body: Record<string, unknown>, c = w.engineer.client) => c.post(`/api/v1/builds/${b()}/import`, body)
 
   it('previews the header, the first rows and a guess at the columns', async () => {
     const csv = '# torque arm log\n\ntimestamp;sample;torque\n2026-03-14 10:30:00;1;31,0\n2026-03-14 10:30:05;2;31,2\n'
     const f = await uploadOk(w.engineer.client, b(), 'arm.csv', csv)
-    const res = await w.engineer.client.get(`/api/builds/${b()}/import/preview?file=${f.id}`)
+    const res = await w.engineer.client.get(`/api/v1/builds/${b()}/import/preview?file=${f.id}`)
     expect(res.status).toBe(200)
     // the instrument's preamble before the header is skipped; lines keep their numbers in the file
     expect(res.body).toMatchObject({ delimiter: ';', headerLine: 3, columns: ['timestamp', 'sample', 'torque'], totalRows: 2 })
     expect(res.body.rows.map((r: { line: number }) => r.line)).toEqual([4, 5])
     const good = await uploadOk(w.engineer.client, b(), 'arm2.csv', 'timestamp;sample;torque\r\n2026-03-14 10:30:00;1;31,0\r\n\r\n2026-03-14 10:30:05;2;31,2\r\n')
-    const preview = (await w.engineer.client.get(`/api/builds/${b()}/import/preview?file=${good.id}`)).body
+    const preview = (await w.engineer.client.get(`/api/v1/builds/${b()}/import/preview?file=${good.id}`)).body
     expect(preview).toMatchObject({
       file: { id: good.id, name: 'arm2.csv' },
       delimiter: ';',
@@ -47,8 +47,8 @@ describe('CSV import and export', () => {
       problem: null,
     })
     const png = await uploadOk(w.engineer.client, b(), 'photo.png', Buffer.from('89504e470d0a1a0a0000000d49484452', 'hex'))
-    expect((await w.engineer.client.get(`/api/builds/${b()}/import/preview?file=${png.id}`)).body.problem).toMatch(/not a text file/)
-    expect((await w.outsider.client.get(`/api/builds/${b()}/import/preview?file=${good.id}`)).status).toBe(404)
+    expect((await w.engineer.client.get(`/api/v1/builds/${b()}/import/preview?file=${png.id}`)).body.problem).toMatch(/not a text file/)
+    expect((await w.outsider.client.get(`/api/v1/builds/${b()}/import/preview?file=${good.id}`)).status).toBe(404)
   })
 
   it('a good file gives the same statistics as the same values posted through the API', async () => {
@@ -123,7 +123,7 @@ describe('CSV import and export', () => {
     const unknown = await uploadOk(w.engineer.client, b(), 'unknown.csv', `rev,torque\n${r1},41\nR999,43\n`)
     await expectRefused(w.build.id, 422, () => importCsv({ file: unknown.id, target: key, revisionColumn: 'rev', valueColumn: 'torque', unit: 'N·m' }), /^Line 3: revision "R999" is not in this build$/)
 
-    expect((await w.owner.client.post(`/api/builds/${b()}/revisions/${r2}/freeze`)).status).toBe(200)
+    expect((await w.owner.client.post(`/api/v1/builds/${b()}/revisions/${r2}/freeze`)).status).toBe(200)
     const frozen = await uploadOk(w.engineer.client, b(), 'frozen.csv', `rev,torque\n${r1},41\n${r2},43\n`)
     await expectRefused(w.build.id, 422, () => importCsv({ file: frozen.id, target: key, revisionColumn: 'rev', valueColumn: 'torque', unit: 'N·m' }), new RegExp(`^Line 3: revision ${r2} is signed off`))
   })
@@ -154,7 +154,7 @@ describe('CSV import and export', () => {
       await newRevision(q.owner.client, q.build.slug, 'R1')
       await addReading(q.engineer.client, q.build.slug, { revision: 'R1', target: speed.key, values: [15.5, 15.6], unit: 'mph', method: 'GPS, "fast" log', takenAt: '2026-03-14T10:00:00Z' })
       await addReading(q.engineer.client, q.build.slug, { revision: 'R1', target: temp.key, values: [176], unit: '°F', method: '=HYPERLINK("x")' })
-      const res = await q.reviewer.client.get(`/api/builds/${q.build.slug}/export/readings.csv`)
+      const res = await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/export/readings.csv`)
       expect(res.status).toBe(200)
       expect(res.headers.get('content-type')).toBe('text/csv; charset=utf-8')
       expect(res.headers.get('content-disposition')).toBe(`attachment; filename="${q.build.slug}-readings.csv"`)
@@ -184,7 +184,7 @@ describe('CSV import and export', () => {
       await addReading(q.engineer.client, q.build.slug, { revision: 'R2', target: 'wheel_torque', values: [31.0, 31.2, 31.4], unit: 'lbf·ft' })
       await addReading(q.engineer.client, q.build.slug, { revision: 'R2', target: 'unit_mass', values: [9.2, 9.3], unit: 'lb' })
       const board = (await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/scoreboard`)).body
-      const res = await q.reviewer.client.get(`/api/builds/${q.build.slug}/export/scoreboard.csv`)
+      const res = await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/export/scoreboard.csv`)
       expect(res.status).toBe(200)
       const rows = Papa.parse<Record<string, string>>(res.body.trim(), { header: true }).data
       expect(rows.map(r => `${r.target}/${r.revision}`)).toEqual(['wheel_torque/R1', 'wheel_torque/R2', 'unit_mass/R1', 'unit_mass/R2'])

@@ -135,11 +135,11 @@ describe('derived targets', () => {
     const e = targetOf(await board(), 'kinetic_energy')
     expect(e.history.map((h: { revision: string }) => h.revision)).toEqual(['R1', 'R2'])
     expect(e.cantEvaluate).toEqual([{ revision: 'R3', reason: 'No reading of "exit_speed" on this revision' }])
-    const detail = await w.reviewer.client.get(`/api/builds/${slug}/targets/kinetic_energy`)
+    const detail = await w.reviewer.client.get(`/api/v1/builds/${slug}/targets/kinetic_energy`)
     expect(detail.status).toBe(200)
     expect(detail.body.inputs.map((i: { key: string }) => i.key)).toEqual(['payload_mass', 'exit_speed'])
     expect(detail.body.cantEvaluate).toEqual(e.cantEvaluate)
-    const r3 = await w.reviewer.client.get(`/api/builds/${slug}/revisions/R3`)
+    const r3 = await w.reviewer.client.get(`/api/v1/builds/${slug}/revisions/R3`)
     expect(r3.status).toBe(200)
     expect(r3.body.targets.find((t: { key: string }) => t.key === 'kinetic_energy')).toMatchObject({ stats: null, cantEvaluate: 'No reading of "exit_speed" on this revision' })
   })
@@ -175,7 +175,7 @@ describe('derived targets', () => {
   it('PATCH refuses a formula that closes a circle, naming the path; nothing changes', async () => {
     await newTarget(w.engineer.client, slug, { key: 'mass_twice', name: 'Twice the mass', unit: 'kg', comparator: 'atLeast', threshold: 1, formula: 'payload_mass * 2' })
     await newTarget(w.engineer.client, slug, { key: 'mass_six', name: 'Six times the mass', unit: 'kg', comparator: 'atLeast', threshold: 1, formula: 'mass_twice * 3' })
-    const res = await expectRefused(buildId, 422, () => w.engineer.client.patch(`/api/builds/${slug}/targets/mass_twice`, { formula: 'mass_six / 3' }), /circle/)
+    const res = await expectRefused(buildId, 422, () => w.engineer.client.patch(`/api/v1/builds/${slug}/targets/mass_twice`, { formula: 'mass_six / 3' }), /circle/)
     expect(res.body.message).toMatch(/mass_six → mass_twice → mass_six|mass_twice → mass_six → mass_twice/)
     expect(res.body.data).toMatchObject({ code: 'cycle' })
     expect((await testDb()('targets').where({ build_id: buildId, key: 'mass_twice' }).first()).formula).toBe('payload_mass * 2')
@@ -193,11 +193,11 @@ describe('derived targets', () => {
   })
 
   it('PATCH refuses a formula on a target that has readings of its own (409), and accepts dropping one', async () => {
-    await expectRefused(buildId, 409, () => w.engineer.client.patch(`/api/builds/${slug}/targets/payload_mass`, { formula: 'exit_speed * 1' }), /has readings of its own/)
-    const off = await w.engineer.client.patch(`/api/builds/${slug}/targets/mass_six`, { formula: null })
+    await expectRefused(buildId, 409, () => w.engineer.client.patch(`/api/v1/builds/${slug}/targets/payload_mass`, { formula: 'exit_speed * 1' }), /has readings of its own/)
+    const off = await w.engineer.client.patch(`/api/v1/builds/${slug}/targets/mass_six`, { formula: null })
     expect(off.status).toBe(200)
     expect(off.body).toMatchObject({ derived: false, formula: null })
-    const on = await w.engineer.client.patch(`/api/builds/${slug}/targets/mass_six`, { formula: 'payload_mass * 6' })
+    const on = await w.engineer.client.patch(`/api/v1/builds/${slug}/targets/mass_six`, { formula: 'payload_mass * 6' })
     expect(on.status).toBe(200)
     expect(on.body).toMatchObject({ derived: true, formula: 'payload_mass * 6' })
   })
@@ -252,11 +252,11 @@ describe('a derived target that divides by zero on a revision', () => {
     expect(ratio.cantEvaluate[0].revision).toBe('R2')
     expect(ratio.cantEvaluate[0].reason).toMatch(/division by zero/)
     expect(ratio.status).toBe('met')
-    for (const path of [`/api/builds/${slug}/targets/ratio`, `/api/builds/${slug}/revisions/R2`, `/api/builds/${slug}/compare?a=R1&b=R2`]) {
+    for (const path of [`/api/v1/builds/${slug}/targets/ratio`, `/api/v1/builds/${slug}/revisions/R2`, `/api/v1/builds/${slug}/compare?a=R1&b=R2`]) {
       const res = await w.reviewer.client.get(path)
       expect(res.status, path).toBe(200)
     }
-    const cmp = (await w.reviewer.client.get(`/api/builds/${slug}/compare?a=R1&b=R2`)).body
+    const cmp = (await w.reviewer.client.get(`/api/v1/builds/${slug}/compare?a=R1&b=R2`)).body
     expect(cmp.targets.find((t: { target: { key: string } }) => t.target.key === 'ratio')).toMatchObject({ delta: null, movement: null, note: expect.stringMatching(/^Can't evaluate on R2: .*division by zero/) })
   })
 
@@ -305,7 +305,7 @@ describe('digest events of a derived target', () => {
   it('editing its rule records the change it makes: slipped above 250 W, Met again below', async () => {
     const c = w.engineer.client
     const edit = async (threshold: number) => {
-      const res = await c.patch(`/api/builds/${slug}/targets/power`, { threshold })
+      const res = await c.patch(`/api/v1/builds/${slug}/targets/power`, { threshold })
       expect(res.status, JSON.stringify(res.body)).toBe(200)
     }
     await edit(300)

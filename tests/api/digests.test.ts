@@ -117,12 +117,12 @@ describe('reviewer e-mail', () => {
     expect(forged.status).toBe(400)
     const otherUser = await new Client().post(`/api/unsubscribe?u=${w.engineer.user.id}&b=${b}&s=${s}`)
     expect(otherUser.status).toBe(400)
-    expect((await w.reviewer.client.get(`/api/builds/${w.build.slug}/subscription`)).body.frequency).toBe('immediate')
+    expect((await w.reviewer.client.get(`/api/v1/builds/${w.build.slug}/subscription`)).body.frequency).toBe('immediate')
 
     // RFC 8058: a POST to the List-Unsubscribe address, with no session
     const res = await new Client().post(`${link.pathname}${link.search}`, 'List-Unsubscribe=One-Click', { 'content-type': 'application/x-www-form-urlencoded' })
     expect(res.status).toBe(200)
-    expect((await w.reviewer.client.get(`/api/builds/${w.build.slug}/subscription`)).body.frequency).toBe('off')
+    expect((await w.reviewer.client.get(`/api/v1/builds/${w.build.slug}/subscription`)).body.frequency).toBe('off')
   })
 })
 

@@ -177,9 +177,9 @@ describe('evidence files in an S3 bucket (s3rver)', () => {
     expect(res.headers.get('content-disposition')).toBe('inline; filename="Prufstand Lauf 3.csv"; filename*=UTF-8\'\'Pr%C3%BCfstand%20Lauf%203.csv')
     expect(await objects()).toContain(key)
 
-    expect((await reviewer.delete(`/api/files/${f.id}`)).status).toBe(403)
+    expect((await reviewer.delete(`/api/v1/files/${f.id}`)).status).toBe(403)
     expect(await objects()).toContain(key)
-    expect((await engineer.delete(`/api/files/${f.id}`)).status).toBe(204)
+    expect((await engineer.delete(`/api/v1/files/${f.id}`)).status).toBe(204)
     expect(await fileRow(f.id)).toBeUndefined()
     expect(await objects()).not.toContain(key)
     expect((await reviewer.get(`/api/v1/files/${f.id}`)).status).toBe(404)

@@ -66,7 +66,7 @@ describe('findings', () => {
       const res = await file(rig, w.build.slug, { title: 'Dyno: torque ripple above 300 rpm' })
       expect(res.status).toBe(201)
       expect((await move(rig, res.body.id, { lane: 'traced', version: 1 })).status).toBe(200)
-      const detail = await w.owner.client.get(`/api/findings/${res.body.id}`)
+      const detail = await w.owner.client.get(`/api/v1/findings/${res.body.id}`)
       expect(detail.body.createdBy).toBe('rig token bench rig')
 
       const foreign = new Client()
@@ -108,8 +108,8 @@ describe('findings', () => {
       expect((await move(w.owner.client, f.id, { lane: 'traced', version: 1 })).status).toBe(200)
       const res = await refused(w.build.id, 409, () => move(w.engineer.client, f.id, { lane: 'bench', version: 1 }), /changed since you loaded it .*version 1.* now at 2.*moved it to Traced/)
       expect(res.body.data.current).toMatchObject({ id: f.id, lane: 'traced', version: 2 })
-      await refused(w.build.id, 409, () => w.engineer.client.patch(`/api/findings/${f.id}`, { version: 1, title: 'Lost edit' }))
-      const ok = await w.engineer.client.patch(`/api/findings/${f.id}`, { version: 2, title: 'Kept edit' })
+      await refused(w.build.id, 409, () => w.engineer.client.patch(`/api/v1/findings/${f.id}`, { version: 1, title: 'Lost edit' }))
+      const ok = await w.engineer.client.patch(`/api/v1/findings/${f.id}`, { version: 2, title: 'Kept edit' })
       expect(ok.status).toBe(200)
       expect(ok.body).toMatchObject({ title: 'Kept edit', version: 3 })
     })
@@ -119,7 +119,7 @@ describe('findings', () => {
       const results = await Promise.all([
         move(w.engineer.client, f.id, { lane: 'traced', version: 1 }),
         move(w.owner.client, f.id, { lane: 'bench', version: 1 }),
-        w.owner.client.patch(`/api/findings/${f.id}`, { version: 1, severity: 'cosmetic' }),
+        w.owner.client.patch(`/api/v1/findings/${f.id}`, { version: 1, severity: 'cosmetic' }),
       ])
       expect(results.map(r => r.status).sort()).toEqual([200, 409, 409])
       const row = await testDb()('findings').where({ id: f.id }).first()
@@ -128,8 +128,8 @@ describe('findings', () => {
 
     it('every write raises the version: edits, moves and fixes', async () => {
       const f = (await file(w.engineer.client, w.build.slug, { title: 'Version test' })).body
-      await w.engineer.client.patch(`/api/findings/${f.id}`, { version: 1, description: 'More detail' })
-      await w.engineer.client.post(`/api/findings/${f.id}/fixes`, { description: 'A fix' })
+      await w.engineer.client.patch(`/api/v1/findings/${f.id}`, { version: 1, description: 'More detail' })
+      await w.engineer.client.post(`/api/v1/findings/${f.id}/fixes`, { description: 'A fix' })
       await move(w.engineer.client, f.id, { lane: 'traced', version: 3 })
       expect((await testDb()('findings').where({ id: f.id }).first()).version).toBe(4)
     })
@@ -152,10 +152,10 @@ describe('findings', () => {
     it('Retest needs a landed fix', async () => {
       const { b, f } = await arrange()
       await refused(b.id, 422, () => move(w.engineer.client, f.id, { lane: 'retest', version: 1 }), /^Retest needs a landed fix/)
-      const fix = await w.engineer.client.post(`/api/findings/${f.id}/fixes`, { description: 'Planetary stage', ownerId: w.engineer.user.id, dueOn: '2026-03-01' })
+      const fix = await w.engineer.client.post(`/api/v1/findings/${f.id}/fixes`, { description: 'Planetary stage', ownerId: w.engineer.user.id, dueOn: '2026-03-01' })
       expect(fix.status).toBe(201)
       await refused(b.id, 422, () => move(w.engineer.client, f.id, { lane: 'retest', version: 2 }), /landed fix/)
-      const landed = await w.engineer.client.patch(`/api/findings/${f.id}/fixes/${fix.body.id}`, { state: 'landed', landedIn: 'R2' })
+      const landed = await w.engineer.client.patch(`/api/v1/findings/${f.id}/fixes/${fix.body.id}`, { state: 'landed', landedIn: 'R2' })
       expect(landed.body).toMatchObject({ state: 'landed', landedIn: 'R2' })
       const ok = await move(w.engineer.client, f.id, { lane: 'retest', version: 3 })
       expect(ok.status).toBe(200)
@@ -164,7 +164,7 @@ describe('findings', () => {
 
     it('Closed needs a reading on a later revision with the hurt target Met there', async () => {
       const { b, f } = await arrange()
-      const fix = (await w.engineer.client.post(`/api/findings/${f.id}/fixes`, { description: 'Planetary stage', state: 'landed', landedIn: 'R2' })).body
+      const fix = (await w.engineer.client.post(`/api/v1/findings/${f.id}/fixes`, { description: 'Planetary stage', state: 'landed', landedIn: 'R2' })).body
       expect(fix.landedIn).toBe('R2')
       // no reading after R1 yet
       await refused(b.id, 422, () => move(w.engineer.client, f.id, { lane: 'closed', version: 2 }), /Closing needs a reading on a revision after R1 \(where it was seen\) and from R2 on \(where its fix landed\); there is none yet/)
@@ -173,16 +173,16 @@ describe('findings', () => {
       await refused(b.id, 422, () => move(w.engineer.client, f.id, { lane: 'closed', version: 2 }), /Closing needs wheel_torque Met on one revision .*; on R2: wheel_torque Short/)
       // R3 meets it: 43 N·m with a tight spread
       await addReading(w.owner.client, b.slug, { revision: 'R3', target: 'wheel_torque', values: [43.6, 42.9, 43.8, 43.1], unit: 'N·m' })
-      const board = await w.engineer.client.get(`/api/builds/${b.slug}/findings`)
+      const board = await w.engineer.client.get(`/api/v1/builds/${b.slug}/findings/board`)
       expect(board.body.findings[0]).toMatchObject({ id: f.id, verifiedOn: 'R3', closeBlocker: null })
       const ok = await move(w.engineer.client, f.id, { lane: 'closed', version: 2 })
       expect(ok.status).toBe(200)
-      const detail = (await w.reviewer.client.get(`/api/findings/${f.id}`)).body
+      const detail = (await w.reviewer.client.get(`/api/v1/findings/${f.id}`)).body
       expect(detail).toMatchObject({ lane: 'closed', verification: { revision: 'R3' }, override: null })
       expect(detail.closedAt).not.toBeNull()
       expect(detail.history[0]).toMatchObject({ kind: 'moved', detail: { from: 'spotted', to: 'closed', verifiedBy: 'R3' } })
       // open findings no longer count it
-      const open = await w.reviewer.client.get(`/api/builds/${b.slug}/findings/open`)
+      const open = await w.reviewer.client.get(`/api/v1/builds/${b.slug}/findings/open`)
       expect(open.body).toEqual({ canFile: false, byTarget: {} })
     })
 
@@ -199,11 +199,11 @@ describe('findings', () => {
       // R3: 43 N·m × 10 rad/s ≈ 434 W, Met
       await addReading(w.owner.client, b.slug, { revision: 'R3', target: 'wheel_torque', values: [43.6, 42.9, 43.8, 43.1], unit: 'N·m' })
       await addReading(w.owner.client, b.slug, { revision: 'R3', target: 'wheel_speed', values: [9.99, 10.0, 10.01], unit: 'rad/s' })
-      const board = await w.engineer.client.get(`/api/builds/${b.slug}/findings`)
+      const board = await w.engineer.client.get(`/api/v1/builds/${b.slug}/findings/board`)
       expect(board.body.findings.find((c: { id: string }) => c.id === g.id)).toMatchObject({ verifiedOn: 'R3', closeBlocker: null })
       const ok = await move(w.engineer.client, g.id, { lane: 'closed', version: 1 })
       expect(ok.status, JSON.stringify(ok.body)).toBe(200)
-      const detail = (await w.reviewer.client.get(`/api/findings/${g.id}`)).body
+      const detail = (await w.reviewer.client.get(`/api/v1/findings/${g.id}`)).body
       expect(detail).toMatchObject({ lane: 'closed', verification: { revision: 'R3' }, override: null })
       // the finding's page shows the derived target's status as the board reads it
       expect(detail.targetInfo).toEqual([expect.objectContaining({ key: 'wheel_power', status: 'met' })])
@@ -236,7 +236,7 @@ describe('findings', () => {
       const ok = await move(w.owner.client, f.id, { lane: 'closed', version: 1, override })
       expect(ok.status).toBe(200)
       expect(ok.body).toMatchObject({ override: true, finding: { lane: 'closed', version: 2 } })
-      const detail = (await w.reviewer.client.get(`/api/findings/${f.id}`)).body
+      const detail = (await w.reviewer.client.get(`/api/v1/findings/${f.id}`)).body
       expect(detail.override).toEqual({ reason: override.reason, by: 'Olu Owner' })
       expect(detail.history[0]).toMatchObject({
         kind: 'moved',
@@ -270,12 +270,12 @@ describe('findings', () => {
       await newTarget(w.owner.client, b.slug, { key: 'peak_current', unit: 'A', comparator: 'atMost', threshold: 30 })
       await newRevision(w.owner.client, b.slug, 'R3')
       const f = (await file(w.engineer.client, b.slug, { title: 'Current spike' })).body
-      const edit = await w.owner.client.patch(`/api/findings/${f.id}`, { version: 1, title: 'Current spike at standing start', severity: 'safety', seenOn: 'R3', targets: ['peak_current'], description: 'Clamp meter peak 36 A' })
+      const edit = await w.owner.client.patch(`/api/v1/findings/${f.id}`, { version: 1, title: 'Current spike at standing start', severity: 'safety', seenOn: 'R3', targets: ['peak_current'], description: 'Clamp meter peak 36 A' })
       expect(edit.status).toBe(200)
       expect(edit.body).toMatchObject({ severity: 'safety', seenOn: 'R3', targets: ['peak_current'], version: 2 })
-      const fix = await w.engineer.client.post(`/api/findings/${f.id}/fixes`, { description: 'Soft current ramp', ownerId: w.engineer.user.id, dueOn: '2026-04-20' })
-      await w.engineer.client.patch(`/api/findings/${f.id}/fixes/${fix.body.id}`, { state: 'landed', landedIn: 'R3', dueOn: null })
-      const detail = (await w.reviewer.client.get(`/api/findings/${f.id}`)).body
+      const fix = await w.engineer.client.post(`/api/v1/findings/${f.id}/fixes`, { description: 'Soft current ramp', ownerId: w.engineer.user.id, dueOn: '2026-04-20' })
+      await w.engineer.client.patch(`/api/v1/findings/${f.id}/fixes/${fix.body.id}`, { state: 'landed', landedIn: 'R3', dueOn: null })
+      const detail = (await w.reviewer.client.get(`/api/v1/findings/${f.id}`)).body
       expect(detail.history.map((e: any) => e.kind)).toEqual(['fix-edited', 'fix-added', 'edited', 'created'])
       expect(detail.history[2]).toMatchObject({
         actor: 'Olu Owner',
@@ -291,7 +291,7 @@ describe('findings', () => {
       expect(detail.fixes).toEqual([{ id: fix.body.id, description: 'Soft current ramp', state: 'landed', owner: { id: w.engineer.user.id, name: 'Eno Engineer' }, dueOn: null, landedIn: 'R3' }])
       expect(detail.targetInfo).toEqual([expect.objectContaining({ key: 'peak_current', status: 'untested', caution: true })])
       // an edit that changes nothing writes nothing
-      const same = await w.owner.client.patch(`/api/findings/${f.id}`, { version: detail.version, title: 'Current spike at standing start' })
+      const same = await w.owner.client.patch(`/api/v1/findings/${f.id}`, { version: detail.version, title: 'Current spike at standing start' })
       expect(same.body.version).toBe(detail.version)
     })
 
@@ -303,23 +303,23 @@ describe('findings', () => {
       [{ description: 'x', state: 'landed', landedIn: 'R404' }, 404, /landedIn/],
     ])('refuses the fix %j with %i', async (body, status, message) => {
       const f = (await file(w.engineer.client, w.build.slug, { title: 'Fix input' })).body
-      await refused(w.build.id, status, () => w.engineer.client.post(`/api/findings/${f.id}/fixes`, body), message)
+      await refused(w.build.id, status, () => w.engineer.client.post(`/api/v1/findings/${f.id}/fixes`, body), message)
     })
 
     it('a fix owner must be a member of the team', async () => {
       const f = (await file(w.engineer.client, w.build.slug, { title: 'Owner test' })).body
-      await refused(w.build.id, 422, () => w.engineer.client.post(`/api/findings/${f.id}/fixes`, { description: 'x', ownerId: w.outsider.user.id }), /member of this build’s team/)
+      await refused(w.build.id, 422, () => w.engineer.client.post(`/api/v1/findings/${f.id}/fixes`, { description: 'x', ownerId: w.outsider.user.id }), /member of this build’s team/)
       const other = (await file(w.engineer.client, w.build.slug, { title: 'Other' })).body
-      const fix = (await w.engineer.client.post(`/api/findings/${other.id}/fixes`, { description: 'x' })).body
+      const fix = (await w.engineer.client.post(`/api/v1/findings/${other.id}/fixes`, { description: 'x' })).body
       // a fix is addressed through its own finding only
-      await refused(w.build.id, 404, () => w.engineer.client.patch(`/api/findings/${f.id}/fixes/${fix.id}`, { state: 'dropped' }))
+      await refused(w.build.id, 404, () => w.engineer.client.patch(`/api/v1/findings/${f.id}/fixes/${fix.id}`, { state: 'dropped' }))
     })
   })
 
   describe('comments', () => {
     it('e-mails the members a comment mentions, once each, and not its author', async () => {
       const f = (await file(w.engineer.client, w.build.slug, { title: `Mention test ${Date.now()}` })).body
-      const res = await w.reviewer.client.post(`/api/findings/${f.id}/comments`, { body: '@Eno @Olu Owner the bearing runs hot at 30 km/h; @Rae I logged it' })
+      const res = await w.reviewer.client.post(`/api/v1/findings/${f.id}/comments`, { body: '@Eno @Olu Owner the bearing runs hot at 30 km/h; @Rae I logged it' })
       expect(res.status).toBe(201)
       expect(res.body.mentions.map((m: { name: string }) => m.name).sort()).toEqual(['Eno Engineer', 'Olu Owner', 'Rae Reviewer'])
       const subject = new RegExp(`Rae Reviewer mentioned you on “${f.title}”`)
@@ -339,7 +339,7 @@ describe('findings', () => {
 
     it('stores Markdown, renders it sanitized, and lists the team members it mentions', async () => {
       const f = (await file(w.engineer.client, w.build.slug, { title: 'Comment test' })).body
-      const res = await w.reviewer.client.post(`/api/findings/${f.id}/comments`, {
+      const res = await w.reviewer.client.post(`/api/v1/findings/${f.id}/comments`, {
         body: 'Seen again, @Eno please check. <script>window.__pwned=1</script><img src=x onerror="window.__pwned=1"> **Bold** @Oz is not in this team',
       })
       expect(res.status).toBe(201)
@@ -349,7 +349,7 @@ describe('findings', () => {
       expect(res.body.body).toContain('<script>')
       const stored = await testDb()('finding_comments').where({ id: res.body.id }).first()
       expect(stored.body).toBe(res.body.body)
-      const detail = (await w.owner.client.get(`/api/findings/${f.id}`)).body
+      const detail = (await w.owner.client.get(`/api/v1/findings/${f.id}`)).body
       expect(detail.commentList).toEqual([res.body])
       // comments don't change the finding's version: they never conflict with a move
       expect(detail.version).toBe(1)
@@ -357,8 +357,8 @@ describe('findings', () => {
 
     it('refuses an empty comment, and outsiders', async () => {
       const f = (await file(w.engineer.client, w.build.slug, { title: 'Comment refusals' })).body
-      await refused(w.build.id, 400, () => w.reviewer.client.post(`/api/findings/${f.id}/comments`, { body: '   ' }), /Write a comment/)
-      await refused(w.build.id, 404, () => w.outsider.client.post(`/api/findings/${f.id}/comments`, { body: 'hello' }))
+      await refused(w.build.id, 400, () => w.reviewer.client.post(`/api/v1/findings/${f.id}/comments`, { body: '   ' }), /Write a comment/)
+      await refused(w.build.id, 404, () => w.outsider.client.post(`/api/v1/findings/${f.id}/comments`, { body: 'hello' }))
     })
   })
 
@@ -367,9 +367,9 @@ describe('findings', () => {
       const f = (await file(w.engineer.client, w.build.slug, { title: 'Reviewer test' })).body
       await refused(w.build.id, 403, () => file(w.reviewer.client, w.build.slug, { title: 'nope' }), /Engineer role/)
       await refused(w.build.id, 403, () => move(w.reviewer.client, f.id, { lane: 'traced', version: 1 }))
-      await refused(w.build.id, 403, () => w.reviewer.client.patch(`/api/findings/${f.id}`, { version: 1, title: 'nope' }))
-      await refused(w.build.id, 403, () => w.reviewer.client.post(`/api/findings/${f.id}/fixes`, { description: 'nope' }))
-      const board = await w.reviewer.client.get(`/api/builds/${w.build.slug}/findings`)
+      await refused(w.build.id, 403, () => w.reviewer.client.patch(`/api/v1/findings/${f.id}`, { version: 1, title: 'nope' }))
+      await refused(w.build.id, 403, () => w.reviewer.client.post(`/api/v1/findings/${f.id}/fixes`, { description: 'nope' }))
+      const board = await w.reviewer.client.get(`/api/v1/builds/${w.build.slug}/findings/board`)
       expect(board.status).toBe(200)
       expect(board.body.role).toBe('reviewer')
     })
@@ -384,13 +384,13 @@ describe('findings', () => {
       await newRevision(w.owner.client, b1.slug, 'R1')
       const f1 = (await file(w.engineer.client, b1.slug, { title: 'First', severity: 'safety' })).body
       const f2 = (await file(w.engineer.client, b2.slug, { title: 'Second' })).body
-      const add = (f: string, body: Record<string, unknown>) => w.engineer.client.post(`/api/findings/${f}/fixes`, { ownerId: me.user.id, ...body })
+      const add = (f: string, body: Record<string, unknown>) => w.engineer.client.post(`/api/v1/findings/${f}/fixes`, { ownerId: me.user.id, ...body })
       const late = (await add(f2.id, { description: 'late', dueOn: '2020-01-10' })).body
       const undated = (await add(f1.id, { description: 'undated' })).body
       const soon = (await add(f1.id, { description: 'soon', dueOn: '2099-05-01', state: 'in-progress' })).body
       await add(f1.id, { description: 'landed', state: 'landed', landedIn: 'R1' })
       await add(f2.id, { description: 'dropped', state: 'dropped', dueOn: '2020-01-01' })
-      await w.engineer.client.post(`/api/findings/${f2.id}/fixes`, { description: 'someone else’s', ownerId: w.engineer.user.id, dueOn: '2020-01-01' })
+      await w.engineer.client.post(`/api/v1/findings/${f2.id}/fixes`, { description: 'someone else’s', ownerId: w.engineer.user.id, dueOn: '2020-01-01' })
 
       const mine = await me.client.get('/api/me/fixes')
       expect(mine.status).toBe(200)
@@ -409,7 +409,7 @@ describe('findings', () => {
       const s = (await file(w.engineer.client, b.slug, { title: 'Lug heats', severity: 'safety', targets: ['unit_mass', 'peak_current'] })).body
       const p = (await file(w.engineer.client, b.slug, { title: 'Parked one', targets: ['unit_mass'] })).body
       await move(w.engineer.client, p.id, { lane: 'parked', version: 1 })
-      const open = await w.engineer.client.get(`/api/builds/${b.slug}/findings/open`)
+      const open = await w.engineer.client.get(`/api/v1/builds/${b.slug}/findings/open`)
       expect(open.body).toEqual({
         canFile: true,
         byTarget: {

@@ -29,7 +29,7 @@ describe('invitations by e-mail', () => {
     const newbie = new Client()
     const su = await newbie.post('/api/auth/signup', { name: 'New Bee', email, password: TEST_PASSWORD, invitation: token })
     expect(su.status).toBe(201)
-    const teams = await newbie.get('/api/teams')
+    const teams = await newbie.get('/api/v1/teams')
     expect(teams.body.find((t: any) => t.slug === owner.team.slug)?.role).toBe('reviewer')
 
     // used: refused the second time

@@ -200,7 +200,7 @@ describe('readings', () => {
 
     it('409 for a frozen revision', async () => {
       const f = await cell({ unit: 'N' })
-      await w.reviewer.client.post(`/api/builds/${w.build.slug}/revisions/${f.label}/freeze`)
+      await w.reviewer.client.post(`/api/v1/builds/${w.build.slug}/revisions/${f.label}/freeze`)
       await expectRefused(w.build.id, 409, () => post({ revision: f.label, target: f.key, values: [1], unit: 'N' }), /frozen/)
     })
 
@@ -235,11 +235,11 @@ describe('readings', () => {
     const row = await testDb()('readings').where({ id: res.body.reading.id }).first()
     expect(row).toMatchObject({ rig_token_id: token.id, taken_by: null })
     expect(new Date(row.taken_at).toISOString()).toBe('2026-04-06T10:30:00.000Z')
-    const detail = await w.engineer.client.get(`/api/builds/${w.build.slug}/targets/${c.key}`)
+    const detail = await w.engineer.client.get(`/api/v1/builds/${w.build.slug}/targets/${c.key}`)
     expect(detail.body.readings[0]).toMatchObject({ by: `rig token ${token.name}`, rig: true, method: 'dyno log' })
   })
 
-  describe('DELETE /api/builds/:build/readings/:id', () => {
+  describe('DELETE /api/v1/builds/:build/readings/:id', () => {
     it('re-pools the cell and re-decides the next revision’s movement', async () => {
       const b = (await w.owner.client.post('/api/v1/builds', { team: w.team.slug, name: 'Delete test' })).body
       const t = await newTarget(w.engineer.client, b.slug, { unit: 'N', comparator: 'atLeast', threshold: 5 })
@@ -250,7 +250,7 @@ describe('readings', () => {
       const r3cell = () => testDb()('cell_stats as c').join('revisions as r', 'r.id', 'c.revision_id').where({ 'c.target_id': t.id, 'r.label': 'R3' }).first('c.*')
       expect((await r3cell()).movement).toBe('steady')
 
-      const res = await w.engineer.client.delete(`/api/builds/${b.slug}/readings/${r2.reading.id}`)
+      const res = await w.engineer.client.delete(`/api/v1/builds/${b.slug}/readings/${r2.reading.id}`)
       expect(res.status).toBe(204)
       expect(await testDb()('readings').where({ id: r2.reading.id }).first()).toBeUndefined()
       expect(await testDb()('cell_stats').where({ target_id: t.id }).pluck('revision_id')).toHaveLength(2)
@@ -265,12 +265,12 @@ describe('readings', () => {
     it('403 for a Reviewer; 404 for another build’s reading or a bad id', async () => {
       const c = await cell({ unit: 'N' })
       const mine = await addReading(w.engineer.client, w.build.slug, { revision: c.label, target: c.key, values: [1, 2], unit: 'N' })
-      await expectRefused(w.build.id, 403, () => w.reviewer.client.delete(`/api/builds/${w.build.slug}/readings/${mine.reading.id}`))
+      await expectRefused(w.build.id, 403, () => w.reviewer.client.delete(`/api/v1/builds/${w.build.slug}/readings/${mine.reading.id}`))
       const t = await newTarget(w.outsider.client, w.foreignBuild.slug)
       const r = await newRevision(w.outsider.client, w.foreignBuild.slug, uniqueKey('R'))
       const theirs = await addReading(w.outsider.client, w.foreignBuild.slug, { revision: r.label, target: t.key, values: [1], unit: 'N' })
-      await expectRefused(w.build.id, 404, () => w.engineer.client.delete(`/api/builds/${w.build.slug}/readings/${theirs.reading.id}`))
-      await expectRefused(w.build.id, 404, () => w.engineer.client.delete(`/api/builds/${w.build.slug}/readings/not-a-uuid`))
+      await expectRefused(w.build.id, 404, () => w.engineer.client.delete(`/api/v1/builds/${w.build.slug}/readings/${theirs.reading.id}`))
+      await expectRefused(w.build.id, 404, () => w.engineer.client.delete(`/api/v1/builds/${w.build.slug}/readings/not-a-uuid`))
     })
   })
 })

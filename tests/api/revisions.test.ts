@@ -8,7 +8,7 @@ describe('revisions', () => {
   afterAll(closeTestDb)
 
   const v1 = () => `/api/v1/builds/${w.build.slug}/revisions`
-  const rev = (label: string) => `/api/builds/${w.build.slug}/revisions/${label}`
+  const rev = (label: string) => `/api/v1/builds/${w.build.slug}/revisions/${label}`
 
   /** A build of its own, so the order of revisions is this test's alone. */
   async function freshBuild() {
@@ -38,7 +38,7 @@ describe('revisions', () => {
     const r4 = await w.engineer.client.post(`/api/v1/builds/${b.slug}/revisions`, { label: 'X1', parent: null })
     expect(r4.body).toMatchObject({ seq: 4, parent: null })
 
-    const list = await w.reviewer.client.get(`/api/builds/${b.slug}/revisions`)
+    const list = await w.reviewer.client.get(`/api/v1/builds/${b.slug}/revisions`)
     expect(list.status).toBe(200)
     expect(list.body.map((r: { label: string }) => r.label)).toEqual(['R1', 'R2', 'R2b', 'X1'])
   })
@@ -94,7 +94,7 @@ describe('revisions', () => {
     await newRevision(w.engineer.client, b.slug, 'R2', { changes: ['Lighter carrier'], parameters: [{ name: 'Gear ratio', value: 1.4 }] })
     await addReading(w.engineer.client, b.slug, { revision: 'R2', target: speed.key, values: [21, 22, 21.5], unit: 'km/h' })
     await addReading(w.engineer.client, b.slug, { revision: 'R2', target: speed.key, values: [13.5], unit: 'mph' })
-    const res = await w.reviewer.client.get(`/api/builds/${b.slug}/revisions/r2`)
+    const res = await w.reviewer.client.get(`/api/v1/builds/${b.slug}/revisions/r2`)
     expect(res.status).toBe(200)
     expect(res.body).toMatchObject({ label: 'R2', parent: 'R1', changes: ['Lighter carrier'], parameters: [{ name: 'Gear ratio', value: 1.4, unit: null }], readings: 2, targetsTested: 1, role: 'reviewer' })
     const byKey = Object.fromEntries(res.body.targets.map((t: { key: string }) => [t.key, t]))
@@ -102,7 +102,7 @@ describe('revisions', () => {
     expect(byKey[speed.key].stats).toMatchObject({ revision: 'R2', readings: 2, n: 4 })
     expect(byKey[mass.key]).toMatchObject({ stats: null, readings: [] })
     for (const label of ['R9', 'R%00', '%E2%82%AC']) {
-      const missing = await w.reviewer.client.get(`/api/builds/${b.slug}/revisions/${label}`)
+      const missing = await w.reviewer.client.get(`/api/v1/builds/${b.slug}/revisions/${label}`)
       expect(missing.status, label).toBe(404)
     }
   })
@@ -136,7 +136,7 @@ describe('revisions', () => {
 
       await expectRefused(w.build.id, 409, () => w.reviewer.client.post(`${rev(label)}/freeze`), /already frozen/)
       await expectRefused(w.build.id, 409, () => w.engineer.client.post(`/api/v1/builds/${w.build.slug}/readings`, { revision: label, target: t.key, values: [13], unit: 'N' }), /frozen/)
-      await expectRefused(w.build.id, 409, () => w.engineer.client.delete(`/api/builds/${w.build.slug}/readings/${reading.reading.id}`), /frozen/)
+      await expectRefused(w.build.id, 409, () => w.engineer.client.delete(`/api/v1/builds/${w.build.slug}/readings/${reading.reading.id}`), /frozen/)
       await expectRefused(w.build.id, 409, () => w.engineer.client.patch(rev(label), { summary: 'late edit' }), /frozen/)
     })
 

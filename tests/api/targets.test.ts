@@ -76,7 +76,7 @@ describe('targets', () => {
     it('409 for a key that exists in the build (archived ones too)', async () => {
       const t = await newTarget(w.engineer.client, w.build.slug)
       await expectRefused(w.build.id, 409, () => w.engineer.client.post(path(), { ...valid(), key: t.key }), /exists/)
-      await w.engineer.client.patch(`/api/builds/${w.build.slug}/targets/${t.key}`, { archived: true })
+      await w.engineer.client.patch(`/api/v1/builds/${w.build.slug}/targets/${t.key}`, { archived: true })
       await expectRefused(w.build.id, 409, () => w.engineer.client.post(path(), { ...valid(), key: t.key }))
     })
 
@@ -115,8 +115,8 @@ describe('targets', () => {
     })
   })
 
-  describe('PATCH /api/builds/:build/targets/:key', () => {
-    const patch = (key: string, body: unknown, c = w.engineer.client) => c.patch(`/api/builds/${w.build.slug}/targets/${key}`, body)
+  describe('PATCH /api/v1/builds/:build/targets/:key', () => {
+    const patch = (key: string, body: unknown, c = w.engineer.client) => c.patch(`/api/v1/builds/${w.build.slug}/targets/${key}`, body)
 
     it('changes the display unit within the quantity; the SI thresholds stay', async () => {
       const t = await newTarget(w.engineer.client, w.build.slug, { unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 })
@@ -206,20 +206,20 @@ describe('targets', () => {
     })
   })
 
-  describe('POST /api/builds/:build/targets/order', () => {
+  describe('POST /api/v1/builds/:build/targets/order', () => {
     it('puts the targets in the given order', async () => {
       const c = w.owner.client
       // a build of this world's team with three targets of its own
       const b = await c.post('/api/v1/builds', { team: w.team.slug, name: 'Order test' })
       const keys = [uniqueKey('a'), uniqueKey('b'), uniqueKey('c')]
       for (const key of keys) await newTarget(c, b.body.slug, { key })
-      const res = await c.post(`/api/builds/${b.body.slug}/targets/order`, { keys: [keys[2], keys[0], keys[1]] })
+      const res = await c.post(`/api/v1/builds/${b.body.slug}/targets/order`, { keys: [keys[2], keys[0], keys[1]] })
       expect(res.status).toBe(200)
       const list = await c.get(`/api/v1/builds/${b.body.slug}/targets`)
       expect(list.body.map((t: { key: string }) => t.key)).toEqual([keys[2], keys[0], keys[1]])
       expect(list.body.map((t: { position: number }) => t.position)).toEqual([0, 1, 2])
 
-      const order = (body: unknown) => () => c.post(`/api/builds/${b.body.slug}/targets/order`, body)
+      const order = (body: unknown) => () => c.post(`/api/v1/builds/${b.body.slug}/targets/order`, body)
       await expectRefused(b.body.id, 400, order({ keys: [keys[0], keys[1]] }), /missing/)
       await expectRefused(b.body.id, 400, order({ keys: [...keys, 'no_such'] }), /no_such/)
       await expectRefused(b.body.id, 400, order({ keys: [keys[0], keys[0], keys[1], keys[2]] }), /twice/)
@@ -227,12 +227,12 @@ describe('targets', () => {
     })
   })
 
-  describe('GET /api/builds/:build/targets/:key', () => {
+  describe('GET /api/v1/builds/:build/targets/:key', () => {
     it('gives the definition, history and every reading in the entered and the display unit', async () => {
       const t = await newTarget(w.engineer.client, w.build.slug, { unit: 'km/h', comparator: 'atLeast', threshold: 20 })
       const r1 = await newRevision(w.engineer.client, w.build.slug, uniqueKey('R'))
       await addReading(w.engineer.client, w.build.slug, { revision: r1.label, target: t.key, values: [15, 15.5], unit: 'mph', method: 'GPS', resolution: 0.1, notes: 'windy' })
-      const res = await w.reviewer.client.get(`/api/builds/${w.build.slug}/targets/${t.key}`)
+      const res = await w.reviewer.client.get(`/api/v1/builds/${w.build.slug}/targets/${t.key}`)
       expect(res.status).toBe(200)
       expect(res.body.target).toMatchObject({ key: t.key, unit: 'km/h', threshold: 20 })
       expect(res.body.role).toBe('reviewer')
@@ -244,7 +244,7 @@ describe('targets', () => {
       expectRelClose(reading.resolution, 0.1 * MPH / KMH)
       expectRelClose(reading.stats.mean, 15.25 * MPH / KMH)
       for (const key of ['no_such_key', 'a%00b', 'Top%20Speed']) {
-        const missing = await w.reviewer.client.get(`/api/builds/${w.build.slug}/targets/${key}`)
+        const missing = await w.reviewer.client.get(`/api/v1/builds/${w.build.slug}/targets/${key}`)
         expect(missing.status, key).toBe(404)
       }
     })

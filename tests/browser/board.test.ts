@@ -53,7 +53,7 @@ describe('the findings board in Chromium', () => {
       title: `${PAYLOAD} Hostile title`,
       description: `Before <script>window.__pwned=1</script> middle ${PAYLOAD} [a link](javascript:window.__pwned=1) \`<b onmouseover="window.__pwned=1">code</b>\` after`,
     })
-    const comment = await c.post(`/api/findings/${ids.xss}/comments`, { body: `Comment start <svg onload="window.__pwned=1"></svg> ${PAYLOAD} @Eno comment end` })
+    const comment = await c.post(`/api/v1/findings/${ids.xss}/comments`, { body: `Comment start <svg onload="window.__pwned=1"></svg> ${PAYLOAD} @Eno comment end` })
     if (comment.status !== 201) throw new Error(`comment: ${comment.status}`)
   })
   afterAll(async () => {
@@ -235,7 +235,7 @@ describe('the findings board in Chromium', () => {
   })
 
   it('shows My fixes, overdue marked', async () => {
-    const fix = await w.engineer.client.post(`/api/findings/${ids.safety}/fixes`, { description: 'Crimp lugs sized for the cable', ownerId: w.engineer.user.id, dueOn: '2020-02-01' })
+    const fix = await w.engineer.client.post(`/api/v1/findings/${ids.safety}/fixes`, { description: 'Crimp lugs sized for the cable', ownerId: w.engineer.user.id, dueOn: '2020-02-01' })
     expect(fix.status).toBe(201)
     const context = await newContext(browser)
     await signIn(context, w.engineer)

@@ -14,7 +14,7 @@ import { goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from
 async function arrange(w: World) {
   const c = w.owner.client
   const b = w.build.slug
-  await mustSucceed(c.patch(`/api/builds/${b}`, { name: 'Trailhopper', summary: 'Hub drive unit of an electric cargo trike' }), 'rename build')
+  await mustSucceed(c.patch(`/api/v1/builds/${b}`, { name: 'Trailhopper', summary: 'Hub drive unit of an electric cargo trike' }), 'rename build')
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'top_speed', name: 'Assisted top speed', unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 }), 'target top_speed')
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_torque', name: 'Continuous wheel torque', unit: 'N·m', comparator: 'atLeast', threshold: 40, noiseBand: 0.5 }), 'target wheel_torque')
   await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R1', summary: 'First hub motor on the bench', changes: ['spur gear set'] }), 'R1')

@@ -13,7 +13,7 @@ async function arrange(w: World) {
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_torque', name: 'Continuous wheel torque', unit: 'N·m', comparator: 'atLeast', threshold: 40 }), 'torque')
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_speed', name: 'Wheel speed', unit: 'rpm', comparator: 'atLeast', threshold: 50 }), 'wheel speed')
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_power', name: 'Power at the wheel', unit: 'W', comparator: 'atLeast', threshold: 200, formula: 'wheel_torque * wheel_speed' }), 'power')
-  await mustSucceed(c.post(`/api/builds/${b}/targets/order`, { keys: ['wheel_power', 'wheel_torque', 'wheel_speed'] }), 'order')
+  await mustSucceed(c.post(`/api/v1/builds/${b}/targets/order`, { keys: ['wheel_power', 'wheel_torque', 'wheel_speed'] }), 'order')
   await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label: 'R1' }), 'R1')
   await uploadOk(c, b, 'torque.csv', 'sample,torque\n1,41.2\n2,41.9\n3,40.8\n')
 }

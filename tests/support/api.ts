@@ -86,7 +86,7 @@ export async function signUp(overrides: { name?: string, email?: string, passwor
   const password = overrides.password ?? TEST_PASSWORD
   const res = await client.post('/api/auth/signup', { name: overrides.name ?? 'Test Person', email, password })
   if (res.status !== 201) throw new Error(`sign-up failed: ${res.status} ${JSON.stringify(res.body)}`)
-  const teams = await client.get('/api/teams')
+  const teams = await client.get('/api/v1/teams')
   return { client, user: res.body.user, email, password, team: teams.body[0] }
 }
 

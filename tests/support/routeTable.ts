@@ -85,7 +85,7 @@ async function freshRevision(w: World, frozen = false) {
   const label = `F${randomBytes(4).toString('hex')}`
   const r = await w.owner.client.post(`/api/v1/builds/${w.build.slug}/revisions`, { label })
   if (r.status !== 201) throw new Error(`matrix revision: ${r.status}`)
-  if (frozen) await w.owner.client.post(`/api/builds/${w.build.slug}/revisions/${label}/freeze`)
+  if (frozen) await w.owner.client.post(`/api/v1/builds/${w.build.slug}/revisions/${label}/freeze`)
   return label
 }
 
@@ -100,7 +100,7 @@ async function freshFinding(w: World) {
 /** A new finding with one fix; returns both ids. */
 async function freshFix(w: World) {
   const id = await freshFinding(w)
-  const r = await w.owner.client.post(`/api/findings/${id}/fixes`, { description: 'Matrix fix' })
+  const r = await w.owner.client.post(`/api/v1/findings/${id}/fixes`, { description: 'Matrix fix' })
   if (r.status !== 201) throw new Error(`matrix fix: ${r.status} ${JSON.stringify(r.body)}`)
   return { id, fixId: r.body.id as string }
 }
@@ -119,8 +119,7 @@ export const routes: RouteCase[] = [
   { method: 'POST', path: '/api/account/password', expect: e(401, 401, 400, 400, 400, 400), prepare: () => ({ body: { currentPassword: 'not-the-password', newPassword: 'torque-wrench-5501' } }) },
 
   // teams and members
-  { method: 'GET', path: '/api/teams', expect: e(401, 401, 200, 200, 200, 200) },
-  { method: 'POST', path: '/api/teams', expect: e(401, 401, 201, 201, 201, 201), prepare: () => ({ body: { name: 'Another team' } }) },
+  { method: 'POST', path: '/api/v1/teams', expect: e(401, 403, 201, 201, 201, 201), prepare: () => ({ body: { name: 'Another team' } }) },
   { method: 'GET', path: '/api/teams/:team', expect: e(401, 401, 404, 200, 200, 200) },
   { method: 'PATCH', path: '/api/teams/:team', expect: e(401, 401, 404, 403, 403, 200), prepare: w => ({ params: base(w), body: { name: 'Matrix team' } }) },
   { method: 'GET', path: '/api/teams/:team/members', expect: e(401, 401, 404, 200, 200, 200) },
@@ -162,29 +161,28 @@ export const routes: RouteCase[] = [
   { method: 'GET', path: '/api/v1/openapi.json', expect: e(200, 200, 200, 200, 200, 200) },
   { method: 'GET', path: '/api/v1/docs', expect: e(200, 200, 200, 200, 200, 200) },
   { method: 'GET', path: '/api/v1/docs/:file', expect: e(200, 200, 200, 200, 200, 200), prepare: () => ({ params: { file: 'init.js' } }) },
-  { method: 'GET', path: '/api/builds/:build', expect: e(401, 401, 404, 200, 200, 200) },
-  { method: 'PATCH', path: '/api/builds/:build', expect: e(401, 401, 404, 403, 200, 200), prepare: w => ({ params: base(w), body: { summary: 'Matrix summary' } }) },
-  { method: 'GET', path: '/api/builds/:build/targets/:key', expect: e(401, 401, 404, 200, 200, 200), prepare: async w => ({ params: { ...base(w), key: (await measuredBuild(w)).key } }) },
-  { method: 'PATCH', path: '/api/builds/:build/targets/:key', expect: e(401, 401, 404, 403, 200, 200), prepare: async w => ({ params: { ...base(w), key: (await measuredBuild(w)).key }, body: { name: 'Matrix target' } }) },
+  { method: 'PATCH', path: '/api/v1/builds/:build', expect: e(401, 403, 404, 403, 200, 200), prepare: w => ({ params: base(w), body: { summary: 'Matrix summary' } }) },
+  { method: 'GET', path: '/api/v1/builds/:build/targets/:key', expect: e(401, 404, 404, 200, 200, 200), prepare: async w => ({ params: { ...base(w), key: (await measuredBuild(w)).key } }) },
+  { method: 'PATCH', path: '/api/v1/builds/:build/targets/:key', expect: e(401, 404, 404, 403, 200, 200), prepare: async w => ({ params: { ...base(w), key: (await measuredBuild(w)).key }, body: { name: 'Matrix target' } }) },
   {
     method: 'POST',
-    path: '/api/builds/:build/targets/order',
-    expect: e(401, 401, 404, 403, 200, 200),
+    path: '/api/v1/builds/:build/targets/order',
+    expect: e(401, 404, 404, 403, 200, 200),
     prepare: async (w) => {
       await measuredBuild(w)
       const list = await w.owner.client.get(`/api/v1/builds/${w.build.slug}/targets`)
       return { params: base(w), body: { keys: (list.body as { key: string }[]).map(t => t.key).reverse() } }
     },
   },
-  { method: 'GET', path: '/api/builds/:build/revisions', expect: e(401, 401, 404, 200, 200, 200) },
-  { method: 'GET', path: '/api/builds/:build/revisions/:label', expect: e(401, 401, 404, 200, 200, 200), prepare: async w => ({ params: { ...base(w), label: (await measuredBuild(w)).label } }) },
-  { method: 'PATCH', path: '/api/builds/:build/revisions/:label', expect: e(401, 401, 404, 403, 200, 200), prepare: async w => ({ params: { ...base(w), label: await freshRevision(w) }, body: { summary: 'Edited' } }) },
-  { method: 'POST', path: '/api/builds/:build/revisions/:label/freeze', expect: e(401, 401, 404, 200, 403, 200), prepare: async w => ({ params: { ...base(w), label: await freshRevision(w) } }) },
-  { method: 'POST', path: '/api/builds/:build/revisions/:label/unfreeze', expect: e(401, 401, 404, 403, 403, 200), prepare: async w => ({ params: { ...base(w), label: await freshRevision(w, true) }, body: { reason: 'Matrix: reading taken with the wrong probe' } }) },
+  { method: 'GET', path: '/api/v1/builds/:build/revisions', expect: e(401, 404, 404, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/builds/:build/revisions/:label', expect: e(401, 404, 404, 200, 200, 200), prepare: async w => ({ params: { ...base(w), label: (await measuredBuild(w)).label } }) },
+  { method: 'PATCH', path: '/api/v1/builds/:build/revisions/:label', expect: e(401, 404, 404, 403, 200, 200), prepare: async w => ({ params: { ...base(w), label: await freshRevision(w) }, body: { summary: 'Edited' } }) },
+  { method: 'POST', path: '/api/v1/builds/:build/revisions/:label/freeze', expect: e(401, 403, 404, 200, 403, 200), prepare: async w => ({ params: { ...base(w), label: await freshRevision(w) } }) },
+  { method: 'POST', path: '/api/v1/builds/:build/revisions/:label/unfreeze', expect: e(401, 403, 404, 403, 403, 200), prepare: async w => ({ params: { ...base(w), label: await freshRevision(w, true) }, body: { reason: 'Matrix: reading taken with the wrong probe' } }) },
   {
     method: 'DELETE',
-    path: '/api/builds/:build/readings/:id',
-    expect: e(401, 401, 404, 403, 204, 204),
+    path: '/api/v1/builds/:build/readings/:id',
+    expect: e(401, 403, 404, 403, 204, 204),
     prepare: async (w) => {
       const { key, label } = await measuredBuild(w)
       const r = await w.owner.client.post(`/api/v1/builds/${w.build.slug}/readings`, { revision: label, target: key, values: [12, 13], unit: 'N' })
@@ -201,8 +199,8 @@ export const routes: RouteCase[] = [
   // history, comparison and derived targets (issue 5)
   {
     method: 'GET',
-    path: '/api/builds/:build/compare',
-    expect: e(401, 401, 404, 200, 200, 200),
+    path: '/api/v1/builds/:build/compare',
+    expect: e(401, 404, 404, 200, 200, 200),
     prepare: async (w) => {
       const { label } = await measuredBuild(w)
       return { params: base(w), query: `a=${label}&b=${await freshRevision(w)}` }
@@ -212,7 +210,7 @@ export const routes: RouteCase[] = [
   // digests (issue 8)
   { method: 'PUT', path: '/api/v1/builds/:build/subscription', expect: e(401, 403, 404, 200, 200, 200), prepare: w => ({ params: base(w), body: { frequency: 'daily' } }) },
   { method: 'GET', path: '/api/v1/builds/:build/events', expect: e(401, 404, 404, 200, 200, 200) },
-  { method: 'GET', path: '/api/builds/:build/subscription', expect: e(401, 401, 404, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/builds/:build/subscription', expect: e(401, 403, 404, 200, 200, 200) },
   { method: 'GET', path: '/api/builds/:build/digest/preview', expect: e(401, 401, 404, 200, 200, 200) },
   { method: 'POST', path: '/api/builds/:build/digest/send', expect: e(401, 401, 404, 403, 403, 200) },
   { method: 'GET', path: '/api/me/subscriptions', expect: e(401, 401, 200, 200, 200, 200) },
@@ -228,25 +226,25 @@ export const routes: RouteCase[] = [
   { method: 'GET', path: '/api/v1/builds/:build/findings', expect: e(401, 404, 404, 200, 200, 200), prepare: w => ({ params: base(w), query: 'lane=spotted' }) },
   { method: 'POST', path: '/api/v1/builds/:build/findings', expect: e(401, 404, 404, 403, 201, 201), prepare: w => ({ params: base(w), body: { title: 'Matrix: connector warm after the climb', severity: 'degrades' } }) },
   { method: 'POST', path: '/api/v1/findings/:id/move', expect: e(401, 404, 404, 403, 200, 200), prepare: async w => ({ params: { id: await freshFinding(w) }, body: { lane: 'traced', version: 1 } }) },
-  { method: 'GET', path: '/api/builds/:build/findings', expect: e(401, 401, 404, 200, 200, 200) },
-  { method: 'GET', path: '/api/builds/:build/findings/open', expect: e(401, 401, 404, 200, 200, 200) },
-  { method: 'GET', path: '/api/findings/:id', expect: e(401, 401, 404, 200, 200, 200), prepare: async w => ({ params: { id: await freshFinding(w) } }) },
-  { method: 'PATCH', path: '/api/findings/:id', expect: e(401, 401, 404, 403, 200, 200), prepare: async w => ({ params: { id: await freshFinding(w) }, body: { version: 1, title: 'Matrix: edited' } }) },
-  { method: 'POST', path: '/api/findings/:id/fixes', expect: e(401, 401, 404, 403, 201, 201), prepare: async w => ({ params: { id: await freshFinding(w) }, body: { description: 'Matrix: thicker lugs', ownerId: w.engineer.user.id, dueOn: '2027-01-15' } }) },
-  { method: 'PATCH', path: '/api/findings/:id/fixes/:fixId', expect: e(401, 401, 404, 403, 200, 200), prepare: async w => ({ params: await freshFix(w), body: { state: 'in-progress' } }) },
+  { method: 'GET', path: '/api/v1/builds/:build/findings/board', expect: e(401, 404, 404, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/builds/:build/findings/open', expect: e(401, 404, 404, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/findings/:id', expect: e(401, 404, 404, 200, 200, 200), prepare: async w => ({ params: { id: await freshFinding(w) } }) },
+  { method: 'PATCH', path: '/api/v1/findings/:id', expect: e(401, 404, 404, 403, 200, 200), prepare: async w => ({ params: { id: await freshFinding(w) }, body: { version: 1, title: 'Matrix: edited' } }) },
+  { method: 'POST', path: '/api/v1/findings/:id/fixes', expect: e(401, 403, 404, 403, 201, 201), prepare: async w => ({ params: { id: await freshFinding(w) }, body: { description: 'Matrix: thicker lugs', ownerId: w.engineer.user.id, dueOn: '2027-01-15' } }) },
+  { method: 'PATCH', path: '/api/v1/findings/:id/fixes/:fixId', expect: e(401, 403, 404, 403, 200, 200), prepare: async w => ({ params: await freshFix(w), body: { state: 'in-progress' } }) },
   // Reviewers comment; they don't create, edit or move
-  { method: 'POST', path: '/api/findings/:id/comments', expect: e(401, 401, 404, 201, 201, 201), prepare: async w => ({ params: { id: await freshFinding(w) }, body: { body: 'Matrix: seen again on the dyno' } }) },
+  { method: 'POST', path: '/api/v1/findings/:id/comments', expect: e(401, 403, 404, 201, 201, 201), prepare: async w => ({ params: { id: await freshFinding(w) }, body: { body: 'Matrix: seen again on the dyno' } }) },
   { method: 'GET', path: '/api/me/fixes', expect: e(401, 401, 200, 200, 200, 200) },
 
   // evidence files, CSV import and export (issue 7)
   { method: 'POST', path: '/api/v1/builds/:build/files', expect: e(401, 404, 404, 403, 201, 201), prepare: w => ({ params: base(w), body: uploadForm('matrix-notes.txt', 'dyno notes\n') }) },
   { method: 'GET', path: '/api/v1/files/:id', expect: e(401, 404, 404, 200, 200, 200), prepare: async w => ({ params: { id: await matrixFile(w) } }) },
-  { method: 'GET', path: '/api/builds/:build/files', expect: e(401, 401, 404, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/builds/:build/files', expect: e(401, 404, 404, 200, 200, 200) },
   // the uploader (the Engineer) or an Owner
-  { method: 'DELETE', path: '/api/files/:id', expect: e(401, 401, 404, 403, 204, 204), prepare: async w => ({ params: { id: await freshUpload(w) } }) },
+  { method: 'DELETE', path: '/api/v1/files/:id', expect: e(401, 403, 404, 403, 204, 204), prepare: async w => ({ params: { id: await freshUpload(w) } }) },
   { method: 'GET', path: '/api/teams/:team/storage', expect: e(401, 401, 404, 200, 200, 200) },
-  { method: 'GET', path: '/api/builds/:build/import/preview', expect: e(401, 401, 404, 403, 200, 200), prepare: async w => ({ params: base(w), query: `file=${await matrixCsv(w)}` }) },
-  { method: 'POST', path: '/api/builds/:build/import', expect: e(401, 401, 404, 403, 201, 201), prepare: async w => ({ params: base(w), body: await importBody(w) }) },
-  { method: 'GET', path: '/api/builds/:build/export/readings.csv', expect: e(401, 401, 404, 200, 200, 200) },
-  { method: 'GET', path: '/api/builds/:build/export/scoreboard.csv', expect: e(401, 401, 404, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/builds/:build/import/preview', expect: e(401, 404, 404, 403, 200, 200), prepare: async w => ({ params: base(w), query: `file=${await matrixCsv(w)}` }) },
+  { method: 'POST', path: '/api/v1/builds/:build/import', expect: e(401, 404, 404, 403, 201, 201), prepare: async w => ({ params: base(w), body: await importBody(w) }) },
+  { method: 'GET', path: '/api/v1/builds/:build/export/readings.csv', expect: e(401, 404, 404, 200, 200, 200) },
+  { method: 'GET', path: '/api/v1/builds/:build/export/scoreboard.csv', expect: e(401, 404, 404, 200, 200, 200) },
 ]

@@ -3,7 +3,7 @@ import { createReadStream, promises as fsp } from 'node:fs'
 import { join, resolve } from 'node:path'
 import type { Readable } from 'node:stream'
 import fsDriver from 'unstorage/drivers/fs'
-import { S3Store, type S3Config } from '../s3'
+import { S3Store, type S3Config } from './s3'
 
 // Where the bytes of evidence files live, behind one interface that streams both ways.
 //

@@ -1,4 +1,7 @@
-export default defineEventHandler(async (event) => {
+import type { BuildDetail } from '#shared/types/api'
+
+export default defineEventHandler(async (event): Promise<BuildDetail> => {
   const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
-  return { id: build.id, name: build.name, slug: build.slug, summary: build.summary, teamId: build.team_id, archived: Boolean(build.archived_at), role }
+  const team = (await useDb()('teams').where({ id: build.team_id }).first('id', 'slug', 'name'))!
+  return { ...buildView(build), teamId: build.team_id, role, team }
 })

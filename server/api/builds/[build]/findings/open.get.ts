@@ -1,6 +1,0 @@
-import type { OpenFindingsByTarget } from '#shared/types/findings'
-
-export default defineEventHandler(async (event): Promise<OpenFindingsByTarget> => {
-  const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
-  return { canFile: role !== 'reviewer', byTarget: await openFindingsByTarget(useDb(), build.id) }
-})

@@ -1,6 +1,0 @@
-export default defineEventHandler(async (event) => {
-  const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
-  const db = useDb()
-  const revision = await findRevision(db, build.id, getRouterParam(event, 'label', { decode: true })!)
-  return await buildRevisionDetail(db, build, role, revision)
-})

@@ -1,4 +1,0 @@
-export default defineEventHandler(async (event) => {
-  const { build } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
-  return await listRevisions(useDb(), build.id)
-})

@@ -1,5 +1,0 @@
-export default defineEventHandler(async (event) => {
-  const { build, user } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
-  const sub = await subscriptionOf(useDb(), user!.id, build.id)
-  return { build: build.slug, frequency: sub?.frequency ?? 'off' }
-})

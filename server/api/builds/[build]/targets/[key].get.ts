@@ -1,4 +1,0 @@
-export default defineEventHandler(async (event) => {
-  const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
-  return await buildTargetDetail(useDb(), build, role, getRouterParam(event, 'key', { decode: true })!)
-})

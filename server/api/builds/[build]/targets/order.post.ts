@@ -1,6 +1,0 @@
-export default defineEventHandler(async (event) => {
-  const { build } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'engineer')
-  const { keys } = await bodyAs(event, TargetOrderBody)
-  await useDb().transaction(trx => reorderTargets(trx, { buildId: build.id, keys }))
-  return { keys }
-})

@@ -1,4 +1,0 @@
-export default defineEventHandler(async (event) => {
-  const { findingId, build, role } = await requireFindingRole(event, 'reviewer')
-  return await findingDetail(useDb(), findingId, build, role)
-})
