@@ -211,8 +211,8 @@ describe('readings', () => {
       await expectRefused(w.build.id, 404, () => post({ ...valid(), revision: theirRev.label }), /not found in this build/)
       await expectRefused(w.build.id, 404, () => post({ ...valid(), target: 'no_such_target' }))
       await expectRefused(w.build.id, 404, () => post({ ...valid(), revision: 'R404' }))
-      await expectRefused(w.build.id, 404, () => post({ ...valid(), target: 'a\u0000b' }))
-      await expectRefused(w.build.id, 404, () => post({ ...valid(), revision: 'R\u00001' }))
+      await expectRefused(w.build.id, 400, () => post({ ...valid(), target: 'a\u0000b' }), /^target: .*NUL/)
+      await expectRefused(w.build.id, 400, () => post({ ...valid(), revision: 'R\u00001' }), /^revision: .*NUL/)
       // the other build's rig token can't post here either
       const rig = new Client()
       rig.bearer = w.foreignToken
