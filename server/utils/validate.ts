@@ -2,10 +2,13 @@ import type { H3Event } from 'h3'
 import { z } from 'zod'
 import { findUnstorableText } from '#shared/utils/storableText'
 
-/** A 400 naming the first string PostgreSQL can't store (a NUL, a lone surrogate), anywhere in input. */
-export function assertStorableText(input: unknown): void {
+/**
+ * A 400 (or `statusCode`: 404 for route parameters, which name rows) naming the first string
+ * PostgreSQL can't store (a NUL, a lone surrogate), anywhere in input.
+ */
+export function assertStorableText(input: unknown, statusCode = 400): void {
   const bad = findUnstorableText(input)
-  if (bad) throw createError({ statusCode: 400, message: `${bad.path}: ${bad.message}`, data: { fields: { [bad.path]: bad.message } } })
+  if (bad) throw createError({ statusCode, message: `${bad.path}: ${bad.message}`, data: { fields: { [bad.path]: bad.message } } })
 }
 
 /**
@@ -13,7 +16,7 @@ export function assertStorableText(input: unknown): void {
  * is checked first for text PostgreSQL can't store, so no schema has to.
  */
 export function parseOr400<T extends z.ZodType>(schema: T, input: unknown, statusCode = 400): z.output<T> {
-  assertStorableText(input)
+  assertStorableText(input, statusCode)
   const result = schema.safeParse(input)
   if (result.success) return result.data
   const fields = fieldErrors(result.error)
@@ -46,10 +49,10 @@ export function paramsAs<T extends z.ZodType>(event: H3Event, schema: T): z.outp
 
 export const IdParam = z.object({ id: z.uuid({ error: 'Not found' }) })
 
-/** A decoded text route parameter (a label, a key); text that can't be stored is a 400. */
+/** A decoded text route parameter (a label, a key); text that can't be stored names no row: a 404. */
 export function textParam(event: H3Event, name: string): string {
   const value = getRouterParam(event, name, { decode: true }) ?? ''
-  assertStorableText({ [name]: value })
+  assertStorableText({ [name]: value }, 404)
   return value
 }
 

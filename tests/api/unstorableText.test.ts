@@ -50,12 +50,19 @@ describe('text PostgreSQL can’t store', () => {
     ['a NUL in the file search', 'q', () => w.engineer.client.get(`/api/builds/${w.build.slug}/files?q=a%00b`)],
     ['a NUL in the file search’s revision', 'revision', () => w.engineer.client.get(`/api/builds/${w.build.slug}/files?revision=R%001`)],
     ['a NUL in the file search’s target', 'target', () => w.engineer.client.get(`/api/builds/${w.build.slug}/files?target=t%00`)],
-    ['a NUL in a revision label in the path', 'label', () => w.engineer.client.get(`/api/builds/${w.build.slug}/revisions/R%001`)],
-    ['a NUL in a target key in the path', 'key', () => w.engineer.client.patch(`/api/builds/${w.build.slug}/targets/t%00`, { name: 'x' })],
   ]
 
   it.each(cases)('400 for %s, naming it', async (_name, path, call) => {
     await refused(call, path)
+  })
+
+  // a route parameter names a row, and no row has such a name: 404, as for any other missing one
+  it.each([
+    ['a NUL in a revision label in the path', 'label', () => w.engineer.client.get(`/api/builds/${w.build.slug}/revisions/R%001`)],
+    ['a NUL in a target key in the path', 'key', () => w.engineer.client.patch(`/api/builds/${w.build.slug}/targets/t%00`, { name: 'x' })],
+    ['a NUL in a revision label to sign off', 'label', () => w.owner.client.post(`/api/builds/${w.build.slug}/revisions/R%00/freeze`)],
+  ] as [string, string, () => Promise<ApiResponse>][])('404 for %s, naming it', async (_name, path, call) => {
+    await refused(call, path, 404)
   })
 
   it('a NUL in a multipart field of an upload: 400 naming it, nothing stored', async () => {
