@@ -175,13 +175,25 @@ export interface FindingAccess extends BuildAccess {
  * The caller's access to a finding's build. Signed-out callers get a 401 before anything is looked
  * up; a finding outside the caller's teams is a 404; a role too low a 403 (requireBuildRole's).
  */
+const findingNotFound = () => createError({ statusCode: 404, message: 'Finding not found' })
+
+/** A finding in a build the caller can't see reads as one that doesn't exist: same status, same words. */
+async function asFindingNotFound<T>(access: Promise<T>): Promise<T> {
+  try {
+    return await access
+  }
+  catch (err) {
+    throw (err as { statusCode?: number }).statusCode === 404 ? findingNotFound() : err
+  }
+}
+
 export async function requireFindingRole(event: H3Event, min: Role, opts: { allowRigToken?: boolean } = {}): Promise<FindingAccess> {
   const id = uuidParam(event, 'id')
   const db = useDb()
   if (opts.allowRigToken && bearerToken(event)) {
     const finding = await db('findings').where({ id }).first()
-    if (!finding) throw createError({ statusCode: 404, message: 'Finding not found' })
-    return { ...await requireBuildRole(event, finding.build_id, min, opts), findingId: id, finding }
+    if (!finding) throw findingNotFound()
+    return { ...await asFindingNotFound(requireBuildRole(event, finding.build_id, min, opts)), findingId: id, finding }
   }
   // the session's check, and the finding with its build and the caller's role there, side by side
   const session = await getUserSession(event)
@@ -193,10 +205,10 @@ export async function requireFindingRole(event: H3Event, min: Role, opts: { allo
           LEFT JOIN memberships m ON m.team_id = b.team_id AND m.user_id = $1 WHERE f.id = $2`, [session.user.id, id]).then(rows => rows[0])
       : null,
   ])
-  if (!row) throw createError({ statusCode: 404, message: 'Finding not found' })
+  if (!row) throw findingNotFound()
   const { build, member_role: role, ...finding } = row
   // outside the team or below the role: the usual 404 or 403, worded by requireBuildRole
-  if (!roleAtLeast(role, min)) return { ...await requireBuildRole(event, build.id, min), findingId: id, finding }
+  if (!roleAtLeast(role, min)) return { ...await asFindingNotFound(requireBuildRole(event, build.id, min)), findingId: id, finding }
   return { build, role: role!, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role!), findingId: id, finding }
 }
 

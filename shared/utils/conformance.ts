@@ -2,7 +2,7 @@
 // the 95 % interval, not the bare mean, has to clear the threshold), the margin to it, and
 // whether a change between two revisions is real and in which direction.
 
-import { welchTest } from './readingStats'
+import { StatsOverflowError, welchTest } from './readingStats'
 
 export type TargetStatus = 'met' | 'marginal' | 'short' | 'untested'
 export type Movement = 'gained' | 'slipped' | 'steady'
@@ -129,6 +129,7 @@ export function movementOf(
   if (!Number.isFinite(band) || band < 0) throw new RangeError('The noise band must be a finite number ≥ 0')
 
   const delta = now.mean - before.mean
+  if (!Number.isFinite(delta)) throw new StatsOverflowError('the change between the revisions')
   const size = Math.abs(delta)
   let p: number | null = null
   let real: boolean

@@ -384,7 +384,8 @@ export function evaluateDerived(
   }
 
   const partials: Record<string, number> = {}
-  let variance = 0
+  // the terms cᵢuᵢ of u_c = √Σ(cᵢuᵢ)², combined by hypot so that no square overflows on the way
+  const terms: number[] = []
   let anyU = false
   for (const key of parsed.symbols) {
     const u = inputs[key]!.u
@@ -396,7 +397,7 @@ export function evaluateDerived(
     if (Number.isNaN(c)) {
       throw new FormulaError('evaluate', `Can't propagate the uncertainty: the formula's rate of change with "${key}" is not finite at these values`)
     }
-    variance += (c * u) ** 2
+    terms.push(c * u)
   }
-  return { mean, u: anyU ? Math.sqrt(variance) : null, partials }
+  return { mean, u: anyU ? Math.hypot(...terms) : null, partials }
 }

@@ -13,7 +13,7 @@
 import type { CellDecision, CellStats, SiRule } from './cellStats'
 import { movementOf, statusOf } from './conformance'
 import { evaluateDerived, FormulaError, parseFormula } from './derived'
-import { tQuantile, welchSatterthwaite } from './readingStats'
+import { StatsOverflowError, tQuantile, welchSatterthwaite } from './readingStats'
 
 /** One input's value on one revision, in SI. */
 export interface InputCell {
@@ -82,10 +82,18 @@ export function evaluatePoint(spec: DerivedSpec, inputs: Record<string, InputCel
   let ciHigh: number | null = null
   let nuEff: number | null = null
   if (value.u !== null) {
-    nuEff = derivedNuEff(budget.map(b => ({ contribution: b.contribution, nuEff: inputs[b.key]!.nuEff })))
+    if (!Number.isFinite(value.u)) return cant(new StatsOverflowError('the combined standard uncertainty').message)
+    try {
+      nuEff = derivedNuEff(budget.map(b => ({ contribution: b.contribution, nuEff: inputs[b.key]!.nuEff })))
+    }
+    catch (e) {
+      if (e instanceof StatsOverflowError) return cant(e.message)
+      throw e
+    }
     const half = tQuantile(0.975, nuEff) * value.u
     ciLow = value.mean - half
     ciHigh = value.mean + half
+    if (!Number.isFinite(ciLow) || !Number.isFinite(ciHigh)) return cant(new StatsOverflowError('the 95 % interval').message)
   }
   const cell: CellStats = { readings: 0, n: 0, mean: value.mean, sd: null, uA: null, uB: null, u: value.u, nuEff, ciLow, ciHigh }
   const status = statusOf({ mean: cell.mean, ci95: ciLow === null ? null : [ciLow, ciHigh!] }, spec.rule) as CellDecision['status']
@@ -100,8 +108,14 @@ function decideMovements(series: DerivedSeries, rule: SiRule): void {
   for (const point of series) {
     if (point?.kind !== 'value') continue
     if (before) {
-      const m = movementOf(before.cell, point.cell, rule, { derived: true, uBefore: before.cell.u, uNow: point.cell.u })
-      point.decision = { ...point.decision, delta: m.delta, p: m.p, movement: m.movement, real: m.real, reason: m.reason }
+      try {
+        const m = movementOf(before.cell, point.cell, rule, { derived: true, uBefore: before.cell.u, uNow: point.cell.u })
+        point.decision = { ...point.decision, delta: m.delta, p: m.p, movement: m.movement, real: m.real, reason: m.reason }
+      }
+      catch (e) {
+        // values too far apart to subtract: the point keeps its status, without a movement
+        if (!(e instanceof StatsOverflowError)) throw e
+      }
     }
     before = point
   }

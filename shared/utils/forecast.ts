@@ -1,6 +1,7 @@
 // Forecast of a target from the means of its latest revisions: an ordinary least-squares
 // line through (revision index, mean) and the revision at which it would reach the target.
 import type { Comparator } from './conformance'
+import { StatsOverflowError } from './readingStats'
 
 export interface LinearFit {
   slope: number
@@ -33,6 +34,7 @@ export function linearFit(xs: readonly number[], ys: readonly number[]): LinearF
 
   const slope = sxy / sxx
   const intercept = yBar - slope * xBar
+  if (![xBar, yBar, sxx, sxy, slope, intercept].every(Number.isFinite)) throw new StatsOverflowError('the fitted line')
   let rss = 0
   for (let i = 0; i < n; i++) {
     // Residual written about the means, same reason as above.
@@ -106,7 +108,16 @@ export function forecast(
   const xs = used.map(p => p.index)
   if (xs[0] === xs[xs.length - 1]) return none
 
-  const { slope, intercept } = linearFit(xs, used.map(p => p.mean))
+  let fit: LinearFit
+  try {
+    fit = linearFit(xs, used.map(p => p.mean))
+  }
+  catch (e) {
+    // means too far apart for a line in double precision: no forecast, as with too few points
+    if (e instanceof StatsOverflowError) return none
+    throw e
+  }
+  const { slope, intercept } = fit
   const at = (x: number) => intercept + slope * x
   const last = used[used.length - 1]!
   const lastIndex = last.index

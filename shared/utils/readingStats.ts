@@ -24,6 +24,19 @@ export interface ReadingStats {
 
 export const MAX_SAMPLES = 10_000
 
+/**
+ * Values whose statistics leave double precision (a square, a sum or a difference past ±1.8e308):
+ * finite inputs, but no finite mean, spread, interval or test. Callers answer it as bad input.
+ */
+export class StatsOverflowError extends RangeError {
+  override name = 'StatsOverflowError'
+  constructor(what = 'the statistics') {
+    super(`The values are too large or too far apart for double precision: ${what} would overflow`)
+  }
+}
+
+const allFinite = (...xs: (number | null | undefined)[]) => xs.every(x => x == null || Number.isFinite(x))
+
 /** Two-sided 95 % normal quantile, the limit of t(0.975, ν) as ν → ∞. */
 export const Z_975 = 1.959963984540054
 
@@ -53,12 +66,20 @@ export function tQuantile(p: number, nu: number): number {
  * ν_eff is Infinity.
  */
 export function welchSatterthwaite(components: readonly { u: number; nu: number }[]): number {
+  let scale = 0
+  for (const { u, nu } of components) {
+    if (!(u >= 0) || !(nu > 0)) throw new RangeError('welchSatterthwaite: u must be ≥ 0 and ν > 0')
+    if (u === Infinity) throw new StatsOverflowError('the effective degrees of freedom')
+    scale = Math.max(scale, u)
+  }
+  // ν_eff is unchanged when every uᵢ is divided by one factor: dividing by the largest keeps
+  // uᵢ⁴ from overflowing (or vanishing) for any finite uᵢ
   let u2 = 0
   let denominator = 0
   for (const { u, nu } of components) {
-    if (!(u >= 0) || !(nu > 0)) throw new RangeError('welchSatterthwaite: u must be ≥ 0 and ν > 0')
-    u2 += u * u
-    if (Number.isFinite(nu)) denominator += (u * u) ** 2 / nu
+    const r = scale > 0 ? u / scale : 0
+    u2 += r * r
+    if (Number.isFinite(nu)) denominator += (r * r) ** 2 / nu
   }
   return denominator === 0 ? Infinity : (u2 * u2) / denominator
 }
@@ -117,18 +138,22 @@ export function computeStats(values: readonly number[], resolution?: number | nu
   const uA = sd === null ? null : sd / Math.sqrt(n)
   // GUM F.2.2.1: a reading known only to the resolution δ lies in ±δ/2, rectangular.
   const uB = delta > 0 ? delta / Math.sqrt(12) : null
+  if (!allFinite(mean, sd, uA)) throw new StatsOverflowError('the mean and standard deviation')
 
   if (uA === null && uB === null) {
     return { n, mean, sd, uA, uB, u: null, nuEff: null, k: null, ci95: null }
   }
   const u = Math.sqrt((uA ?? 0) ** 2 + (uB ?? 0) ** 2)
+  if (!Number.isFinite(u)) throw new StatsOverflowError('the combined standard uncertainty')
   let nuEff: number
   if (uA === null) nuEff = Infinity
   else if (uB === null) nuEff = n - 1
   else nuEff = welchSatterthwaite([{ u: uA, nu: n - 1 }, { u: uB, nu: Infinity }])
   const k = tQuantile(0.975, nuEff)
   const half = k * u
-  return { n, mean, sd, uA, uB, u, nuEff, k, ci95: [mean - half, mean + half] }
+  const ci95: [number, number] = [mean - half, mean + half]
+  if (!allFinite(...ci95)) throw new StatsOverflowError('the 95 % interval')
+  return { n, mean, sd, uA, uB, u, nuEff, k, ci95 }
 }
 
 export interface SampleSummary {
@@ -153,6 +178,7 @@ export function welchTest(a: SampleSummary, b: SampleSummary): { t: number; df: 
   const va = (a.sd * a.sd) / a.n
   const vb = (b.sd * b.sd) / b.n
   const diff = a.mean - b.mean
+  if (!allFinite(va, vb, va + vb, diff)) throw new StatsOverflowError('Welch’s test between the readings')
   if (va + vb === 0) {
     const df = a.n + b.n - 2
     return diff === 0 ? { t: 0, df, p: 1 } : { t: diff > 0 ? Infinity : -Infinity, df, p: 0 }

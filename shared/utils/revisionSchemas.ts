@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { plausibleYear, storableText } from './storableText'
+import { plausibleYear } from './storableText'
 import { numberField, unitField } from './targetSchemas'
 
 // Shared by the revision forms and the revision routes.
@@ -10,17 +10,17 @@ export const revisionLabelField = z.string({ error: 'Give the revision a label' 
   .max(40, 'A label has at most 40 characters')
   .regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/, 'A label uses letters, digits, dots, dashes and underscores (e.g. R3 or v2.1)')
 
-const summaryField = storableText(z.string().trim().max(4000, 'A summary has at most 4,000 characters'))
+const summaryField = z.string().trim().max(4000, 'A summary has at most 4,000 characters')
 
 const changesField = z.array(
-  storableText(z.string({ error: 'Each change is a line of text' }).trim().min(1, 'A change can’t be empty').max(500, 'A change has at most 500 characters')),
+  z.string({ error: 'Each change is a line of text' }).trim().min(1, 'A change can’t be empty').max(500, 'A change has at most 500 characters'),
   { error: 'changes is a list of lines' },
 ).max(100, 'At most 100 changes')
 
 /** A design parameter: a number (with a unit) or a short text such as a part number. */
 export const ParameterField = z.object({
-  name: storableText(z.string({ error: 'Name the parameter' }).trim().min(1, 'Name the parameter').max(80, 'A name has at most 80 characters')),
-  value: z.union([numberField('The value'), storableText(z.string().trim().min(1).max(200))], { error: 'The value is a number or a short text' }),
+  name: z.string({ error: 'Name the parameter' }).trim().min(1, 'Name the parameter').max(80, 'A name has at most 80 characters'),
+  value: z.union([numberField('The value'), z.string().trim().min(1).max(200)], { error: 'The value is a number or a short text' }),
   unit: unitField.nullable().optional(),
 })
 
@@ -46,5 +46,5 @@ export const RevisionPatch = z.object({
 })
 
 export const UnfreezeBody = z.object({
-  reason: storableText(z.string({ error: 'Say why the revision is reopened' }).trim().min(1, 'Say why the revision is reopened').max(1000, 'A reason has at most 1,000 characters')),
+  reason: z.string({ error: 'Say why the revision is reopened' }).trim().min(1, 'Say why the revision is reopened').max(1000, 'A reason has at most 1,000 characters'),
 })

@@ -1,6 +1,5 @@
 import { z } from 'zod'
 import { nameField } from './accountSchemas'
-import { storableText } from './storableText'
 
 // Shared by the target forms and the target routes. Numbers are in the target's display unit.
 
@@ -16,14 +15,14 @@ export const targetKeyField = z.string({ error: 'Give the target a key' })
   .regex(/^[a-z][a-z0-9_]*$/, 'A key uses lower-case letters, digits and underscores, and starts with a letter')
   .refine(k => !RESERVED_KEYS.includes(k), 'This key is reserved; choose another')
 
-export const unitField = storableText(z.string({ error: 'Give a unit' }).trim().min(1, 'Give a unit').max(30, 'A unit has at most 30 characters'))
+export const unitField = z.string({ error: 'Give a unit' }).trim().min(1, 'Give a unit').max(30, 'A unit has at most 30 characters')
 
 /** A finite number (zod refuses NaN, Infinity and numeric strings). */
 export const numberField = (what: string) => z.number({ error: `${what} must be a number` })
 
 export const comparatorField = z.enum(COMPARATORS, { error: 'The comparator is atLeast, atMost or between' })
 
-const notesField = storableText(z.string().trim().max(4000, 'Notes have at most 4,000 characters'))
+const notesField = z.string().trim().max(4000, 'Notes have at most 4,000 characters')
 
 /**
  * A derived target's formula over other targets' keys (shared/utils/derived.ts); empty or null
@@ -31,12 +30,12 @@ const notesField = storableText(z.string().trim().max(4000, 'Notes have at most 
  * (The limit is derived.ts's FORMULA_MAX_LENGTH, not imported: that module brings mathjs.)
  */
 const FORMULA_MAX_LENGTH = 500
-export const formulaField = storableText(z.string({ error: 'The formula is text, e.g. wheel_torque * wheel_speed' })
+export const formulaField = z.string({ error: 'The formula is text, e.g. wheel_torque * wheel_speed' })
   .trim()
-  .max(FORMULA_MAX_LENGTH, `A formula has at most ${FORMULA_MAX_LENGTH} characters`))
+  .max(FORMULA_MAX_LENGTH, `A formula has at most ${FORMULA_MAX_LENGTH} characters`)
   .nullable()
   .transform(f => (f ? f : null))
-const targetNameField = storableText(nameField)
+const targetNameField = nameField
 
 export interface TargetRuleInput {
   comparator: typeof COMPARATORS[number]

@@ -186,6 +186,21 @@ describe('readings', () => {
       await expectRefused(w.build.id, 400, () => post({ revision: e.label, target: e.key, values: [1e308], unit: 'kWh' }), /too large/)
     })
 
+    it('422 naming the values when the cell’s pooled statistics would overflow double precision', async () => {
+      // [11, 12] mm at 0.1 mm, then [1e308] mm: each converts to SI (1e305 m), but the pooled
+      // deviations square past the largest double, 1.797e308 (IEEE 754 binary64)
+      const o = await cell({ unit: 'mm', comparator: 'atMost', threshold: 20 })
+      expect((await post({ revision: o.label, target: o.key, values: [11, 12], unit: 'mm', resolution: 0.1 })).status).toBe(201)
+      const res = await expectRefused(w.build.id, 422, () => post({ revision: o.label, target: o.key, values: [1e308], unit: 'mm' }), /^values: .*would overflow/)
+      expect(Object.keys(res.body.data.fields)).toEqual(['values'])
+      // a single reading whose own spread overflows, and one far from the previous revision's mean
+      await expectRefused(w.build.id, 422, () => post({ revision: o.label, target: o.key, values: [1.7e308, -1.7e308], unit: 'mm' }), /^values: /)
+      const m = await cell({ unit: 'm', comparator: 'atMost', threshold: 20 })
+      expect((await post({ revision: m.label, target: m.key, values: [-1.7e308], unit: 'm' })).status).toBe(201)
+      const next = await newRevision(w.engineer.client, w.build.slug, uniqueKey('R'))
+      await expectRefused(w.build.id, 422, () => post({ revision: next.label, target: m.key, values: [1.7e308], unit: 'm' }), /^values: .*between the revisions/)
+    })
+
     it('10,000 values are accepted; a cell pools at most 10,000 (409 beyond)', async () => {
       const f = await cell({ unit: 'km/h' })
       const res = await post({ revision: f.label, target: f.key, unit: 'km/h', values: Array.from({ length: 9_999 }, (_, i) => 20 + (i % 7)) })
@@ -211,8 +226,8 @@ describe('readings', () => {
       await expectRefused(w.build.id, 404, () => post({ ...valid(), revision: theirRev.label }), /not found in this build/)
       await expectRefused(w.build.id, 404, () => post({ ...valid(), target: 'no_such_target' }))
       await expectRefused(w.build.id, 404, () => post({ ...valid(), revision: 'R404' }))
-      await expectRefused(w.build.id, 404, () => post({ ...valid(), target: 'a\u0000b' }))
-      await expectRefused(w.build.id, 404, () => post({ ...valid(), revision: 'R\u00001' }))
+      await expectRefused(w.build.id, 400, () => post({ ...valid(), target: 'a\u0000b' }), /^target: .*NUL/)
+      await expectRefused(w.build.id, 400, () => post({ ...valid(), revision: 'R\u00001' }), /^revision: .*NUL/)
       // the other build's rig token can't post here either
       const rig = new Client()
       rig.bearer = w.foreignToken

@@ -1,5 +1,6 @@
 import type { CantEvaluate, ComparedTarget, CompareSide, Comparison, FixLanded, HistoryEntry, Mover, ParameterDiff, RevisionView, TargetView } from '../../../shared/types/api'
 import { compareCells, rankMovements } from '../../../shared/utils/movers'
+import { StatsOverflowError } from '../../../shared/utils/readingStats'
 import { findRevision, listRevisions } from './revisions'
 import { seriesOf, type TargetSeries } from './history'
 import type { CellRow, TargetRow } from '../../db/tables'
@@ -76,7 +77,15 @@ export function compareTarget(t: TargetRow, series: TargetSeries, a: string, b: 
     return { target: view, a: ha && side(ha), b: hb && side(hb), ...none, note: noteFor(view, a, b, Boolean(ha), Boolean(hb), series.cantEvaluate) }
   }
   // in the display unit: the offset cancels in Δ, Welch's p is scale-free, the rule is in the same unit
-  const m = compareCells(ha, hb, view, view.derived)
+  let m
+  try {
+    m = compareCells(ha, hb, view, view.derived)
+  }
+  catch (e) {
+    // the two cells are too far apart to compare in double precision: both sides, no movement
+    if (!(e instanceof StatsOverflowError)) throw e
+    return { target: view, a: side(ha), b: side(hb), ...none, note: e.message }
+  }
   return { target: view, a: side(ha), b: side(hb), delta: m.delta, p: m.p, movement: m.movement, real: m.real, reason: m.reason, note: null }
 }
 

@@ -80,7 +80,9 @@ export function parseCsvText(raw: string): ParsedCsv {
       const cells = result.data
       if (cells.every(c => c.trim() === '')) return
       const e = result.errors[0]
-      all.push({ line, cells, error: e ? (e.code === 'MissingQuotes' ? 'a quoted field is not closed' : e.message) : null })
+      // text past the sniffed head of the file may still hold a NUL, which no column can store
+      const unstorable = cells.some(c => c.includes('\u0000')) ? 'a cell holds the NUL character' : null
+      all.push({ line, cells, error: e ? (e.code === 'MissingQuotes' ? 'a quoted field is not closed' : e.message) : unstorable })
     },
   })
   const widths = new Map<number, number>()

@@ -4,7 +4,7 @@ import type { z } from 'zod'
 import type { ReadingCreated, ReadingDetail } from '../../../shared/types/api'
 import { cellFromStats, cellInUnit, cellStatus } from '../../../shared/utils/cellStats'
 import type { ReadingBody } from '../../../shared/utils/readingSchemas'
-import { MAX_SAMPLES, computeStats } from '../../../shared/utils/readingStats'
+import { MAX_SAMPLES, StatsOverflowError, computeStats } from '../../../shared/utils/readingStats'
 import { assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI } from '../../../shared/utils/units'
 import type { ReadingRow, TargetRow } from '../../db/tables'
 import type { Actor } from '../audit'
@@ -18,6 +18,17 @@ import { cellTargetOf, findTarget, unitProblem } from './targets'
 // in (the seed uses it too). Each write re-pools the cell and re-decides the target in the same
 // transaction, holding the target's row lock, so the cached statistics never disagree.
 
+/** Statistics that overflow double precision (the reading's, its cell's, a movement's) as a 422 naming the values. */
+async function statsOr422<T>(work: () => Promise<T>): Promise<T> {
+  try {
+    return await work()
+  }
+  catch (e) {
+    if (!(e instanceof StatsOverflowError)) throw e
+    throw createError({ statusCode: 422, message: `values: ${e.message}`, data: { fields: { values: 'Statistics overflow' } } })
+  }
+}
+
 function tooLarge(): never {
   throw createError({ statusCode: 400, message: 'values: The values are too large to compute with in SI', data: { fields: { values: 'Too large' } } })
 }
@@ -25,9 +36,13 @@ function tooLarge(): never {
 /**
  * Records a reading and updates the cell's cached statistics. 404 for a target or revision not in
  * the build, 409 for a derived or archived target, a frozen revision or a cell that would pool more than
- * MAX_SAMPLES values, 422 for a unit of another quantity.
+ * MAX_SAMPLES values, 422 for a unit of another quantity or statistics that overflow.
  */
 export async function insertReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
+  return await statsOr422(() => recordReading(trx, actor, input))
+}
+
+async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
   const { buildId, body } = input
   const target = await findTarget(trx, buildId, body.target, true)
   const revision = await findRevision(trx, buildId, body.revision, 'share')
@@ -92,6 +107,10 @@ export async function insertReading(trx: Knex.Transaction, actor: Pick<Actor, 'u
 
 /** Deletes a reading of the build; 404 when there is none, 409 when its revision is frozen. */
 export async function deleteReading(trx: Knex.Transaction, input: { buildId: string, id: string }): Promise<{ target: TargetRow, revision: string, n: number }> {
+  return await statsOr422(() => removeReading(trx, input))
+}
+
+async function removeReading(trx: Knex.Transaction, input: { buildId: string, id: string }): Promise<{ target: TargetRow, revision: string, n: number }> {
   const { buildId, id } = input
   const found = await trx('readings').join('targets', 'targets.id', 'readings.target_id')
     .where('readings.id', id).where('targets.build_id', buildId)

@@ -1,6 +1,6 @@
 export default defineEventHandler(async (event) => {
   const { build, actorId, actorLabel } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'engineer', { allowRigToken: true })
-  const key = getRouterParam(event, 'key', { decode: true })!
+  const key = textParam(event, 'key')
   const body = await bodyAs(event, TargetPatch)
   const row = await useDb().transaction(async (trx) => {
     const target = await findTarget(trx, build.id, key, true)

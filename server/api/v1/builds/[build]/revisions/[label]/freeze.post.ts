@@ -3,7 +3,7 @@ export default defineEventHandler(async (event) => {
   refuseRigToken(event)
   const { build, role, user } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer')
   if (role === 'engineer') throw createError({ statusCode: 403, message: 'Signing off a revision is for a Reviewer or an Owner' })
-  const label = getRouterParam(event, 'label', { decode: true })!
+  const label = textParam(event, 'label')
   const db = useDb()
   const id = await db.transaction(async (trx) => {
     const revision = await findRevision(trx, build.id, label, 'update')

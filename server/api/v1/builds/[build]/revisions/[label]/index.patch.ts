@@ -1,6 +1,6 @@
 export default defineEventHandler(async (event) => {
   const { build } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'engineer', { allowRigToken: true })
-  const label = getRouterParam(event, 'label', { decode: true })!
+  const label = textParam(event, 'label')
   const body = await bodyAs(event, RevisionPatch)
   const db = useDb()
   const id = await db.transaction(async (trx) => {

@@ -1,7 +1,7 @@
 export default defineEventHandler(async (event) => {
   refuseRigToken(event)
   const { build, user } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'owner')
-  const label = getRouterParam(event, 'label', { decode: true })!
+  const label = textParam(event, 'label')
   const { reason } = await bodyAs(event, UnfreezeBody)
   const db = useDb()
   const id = await db.transaction(async (trx) => {
