@@ -402,8 +402,9 @@ export async function sendStoredFile(event: H3Event, file: FileRow) {
 export async function deleteFile(event: H3Event, id: string) {
   const { file, access } = await fileForReader(event, id, { allowRigToken: false })
   const user = access.user!
-  if (access.role !== 'owner' && file.uploaded_by !== user.id) {
-    throw createError({ statusCode: 403, message: 'Only the person who uploaded a file, or an Owner, can delete it' })
+  // the role is today's (read with this request): an uploader since made a Reviewer can't
+  if (access.role !== 'owner' && (file.uploaded_by !== user.id || access.role !== 'engineer')) {
+    throw createError({ statusCode: 403, message: 'Only the person who uploaded a file (while an Engineer), or an Owner, can delete it' })
   }
   const db = useDb()
   if (file.revision_id && access.role !== 'owner') {
