@@ -26,7 +26,7 @@ export default defineEventHandler(async (event) => {
   const down = [db === 'down' ? 'db' : null, mail === 'down' ? 'mail' : null].filter(Boolean)
   if (db === 'down') {
     setResponseStatus(event, 503)
-    setResponseHeader(event, 'Retry-After', '5')
+    setResponseHeader(event, 'Retry-After', 5)
   }
   return { status: down.length ? 'degraded' : 'ok', db, mail, ...(down.length ? { down } : {}) }
 })

@@ -39,6 +39,6 @@ export default defineNitroPlugin((nitroApp) => {
     e.message = 'The database is unavailable; try again in a few seconds'
     e.unhandled = false
     e.fatal = false
-    setResponseHeader(event, 'Retry-After', String(RETRY_AFTER_SECONDS))
+    setResponseHeader(event, 'Retry-After', RETRY_AFTER_SECONDS)
   })
 })

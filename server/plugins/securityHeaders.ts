@@ -58,10 +58,11 @@ export default defineNitroPlugin((nitroApp) => {
   })
 
   nitroApp.hooks.hook('render:response', (response, { event }) => {
-    delete response.headers['x-powered-by']
-    const type = String(response.headers['content-type'] ?? '')
+    const headers = (response.headers ??= {})
+    delete headers['x-powered-by']
+    const type = String(headers['content-type'] ?? '')
     if (type.startsWith('text/html') && !getResponseHeader(event, 'content-security-policy')) {
-      response.headers['content-security-policy'] = contentSecurityPolicy(nonceOf(event))
+      headers['content-security-policy'] = contentSecurityPolicy(nonceOf(event))
     }
   })
 
