@@ -1,3 +1,4 @@
+import { randomUUID } from 'node:crypto'
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
 import type { Role } from '#shared/utils/roles'
@@ -27,8 +28,9 @@ export async function requireUser(event: H3Event): Promise<SessionUser> {
   if (event.context.user) return event.context.user as SessionUser
   const session = await getUserSession(event)
   if (!session.user) throw createError({ statusCode: 401, message: 'Sign in first' })
-  const [row] = await prepared<{ id: string, name: string, email: string, session_version: number }>(useDb(), 'SELECT id, name, email, session_version FROM users WHERE id = $1', [session.user.id])
-  if (!row || row.session_version !== session.sessionVersion) {
+  // a session signed out of (revoked_sessions) has ended too, whatever its cookie says
+  const [row] = await prepared<{ id: string, name: string, email: string, session_version: number, revoked: boolean }>(useDb(), 'SELECT id, name, email, session_version, EXISTS (SELECT 1 FROM revoked_sessions WHERE sid = $2) AS revoked FROM users WHERE id = $1', [session.user.id, sessionId(session)])
+  if (!row || row.session_version !== session.sessionVersion || row.revoked) {
     await clearUserSession(event)
     throw createError({ statusCode: 401, message: 'Your session has ended; sign in again' })
   }
@@ -140,10 +142,19 @@ export async function useRigToken(event: H3Event, token: string) {
   return row
 }
 
-/** Starts a fresh session for the user (a new cookie: the old one is replaced). */
-export async function startSession(event: H3Event, user: { id: string, name: string, email: string, session_version: number }) {
+/** The id that signing out revokes: the session's own (`sid`), or h3's for a cookie made before it. */
+export function sessionId(session: { sid?: string, id?: string }): string {
+  return session.sid || session.id || ''
+}
+
+/**
+ * Starts a fresh session for the user (a new cookie: the old one is replaced). `sid` keeps the
+ * id of the session being renewed (a changed name), so signing out still ends the earlier cookie.
+ */
+export async function startSession(event: H3Event, user: { id: string, name: string, email: string, session_version: number }, sid: string = randomUUID()) {
   await replaceUserSession(event, {
     user: { id: user.id, name: user.name, email: user.email },
+    sid,
     sessionVersion: user.session_version,
     loggedInAt: Date.now(),
   })

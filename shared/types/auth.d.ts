@@ -8,6 +8,8 @@ declare module '#auth-utils' {
   interface UserSession {
     /** must equal users.session_version, or the session has been ended (password reset) */
     sessionVersion: number
+    /** this session's id; signing out records it in revoked_sessions */
+    sid?: string
     loggedInAt: number
   }
 }

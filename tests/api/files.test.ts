@@ -227,13 +227,14 @@ describe('evidence files', () => {
     it('bad requests are 400s that store nothing', async () => {
       const before = await storedState(w.build.id)
       const cases = [
+        // a JSON body on the upload route is the wrong media type: 415
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, { file: 'not multipart' }),
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, uploadForm('empty.txt', '')),
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, (() => { const f = new FormData(); f.append('revision', 'R1'); return f })()),
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, (() => { const f = new FormData(); f.append('photo', new Blob(['x']), 'x.txt'); return f })()),
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, uploadForm('a.txt', 'x', { reading: 'not-an-id' })),
       ]
-      expect(cases.map(r => r.status)).toEqual([400, 400, 400, 400, 400])
+      expect(cases.map(r => r.status)).toEqual([415, 400, 400, 400, 400])
       for (const r of cases) expect(typeof r.body.message).toBe('string')
       expect(await storedState(w.build.id)).toEqual(before)
     })

@@ -25,10 +25,10 @@ function serverRoutes(): string[] {
   return out.sort()
 }
 
-function clientFor(w: World, actor: Actor): Client {
+function clientFor(w: World, actor: Actor, cookie?: string): Client {
   const c = new Client()
   if (actor === 'foreignRig') c.bearer = w.foreignToken
-  else if (actor !== 'anon') c.cookie = w[actor].client.cookie
+  else if (actor !== 'anon') c.cookie = cookie ?? w[actor].client.cookie
   return c
 }
 
@@ -58,7 +58,7 @@ describe('the role matrix', () => {
       const params = prepared.params ?? { team: world.team.slug, build: world.build.slug }
       const path = fill(route.path, params) + (prepared.query ? `?${prepared.query}` : '')
       const body = prepared.body ?? (route.method === 'GET' || route.method === 'DELETE' ? undefined : {})
-      const res = await clientFor(world, actor).request(route.method, path, body)
+      const res = await clientFor(world, actor, prepared.cookie).request(route.method, path, body)
       got[actor] = res.status
       if (res.status >= 400) messages[actor] = res.body?.message
       // an error always carries a message a person can act on

@@ -1,5 +1,5 @@
 import { createHash, randomBytes } from 'node:crypto'
-import { addMember, signUp, testDb, uniqueEmail, type World } from './api'
+import { addMember, Client, signUp, testDb, uniqueEmail, type World } from './api'
 import { unsubscribeQuery } from './unsubscribe'
 import { freshUpload, importBody, matrixCsv, matrixFile, uploadForm } from './files'
 
@@ -8,6 +8,8 @@ export type Actor = typeof ACTORS[number]
 
 export interface Prepared {
   params?: Record<string, string>
+  /** the session cookie to call with, in place of the actor's own (for calls that end sessions) */
+  cookie?: string
   body?: unknown
   query?: string
 }
@@ -105,17 +107,33 @@ async function freshFix(w: World) {
   return { id, fixId: r.body.id as string }
 }
 
+/** A second session of the actor's user, for a call that ends it (the world's own stays live). */
+async function freshSession(w: World, actor: Actor): Promise<Prepared> {
+  if (actor === 'anon' || actor === 'foreignRig') return {}
+  const c = new Client()
+  const r = await c.post('/api/auth/login', { email: w[actor].email, password: w[actor].password })
+  if (r.status !== 200) throw new Error(`could not sign ${actor} in again: ${r.status}`)
+  return { cookie: c.cookie }
+}
+
+/** A session of a person of their own, for a call that ends all of a user's sessions. */
+async function throwawaySession(actor: Actor): Promise<Prepared> {
+  if (actor === 'anon' || actor === 'foreignRig') return {}
+  return { cookie: (await signUp({ name: 'Throwaway Person' })).client.cookie }
+}
+
 export const routes: RouteCase[] = [
   { method: 'GET', path: '/api/health', expect: e(200, 200, 200, 200, 200, 200) },
 
   // accounts
   { method: 'POST', path: '/api/auth/signup', expect: e(201, 201, 201, 201, 201, 201), prepare: () => ({ body: { name: 'New Person', email: uniqueEmail('signup'), password: 'torque-wrench-5501' } }) },
   { method: 'POST', path: '/api/auth/login', expect: e(200, 200, 200, 200, 200, 200), prepare: w => ({ body: { email: w.engineer.email, password: w.engineer.password } }) },
-  { method: 'POST', path: '/api/auth/logout', expect: e(200, 200, 200, 200, 200, 200) },
+  { method: 'POST', path: '/api/auth/logout', expect: e(200, 200, 200, 200, 200, 200), prepare: (w, a) => freshSession(w, a) },
   { method: 'POST', path: '/api/auth/forgot', expect: e(200, 200, 200, 200, 200, 200), prepare: () => ({ body: { email: uniqueEmail('forgot') } }) },
   { method: 'POST', path: '/api/auth/reset', expect: e(400, 400, 400, 400, 400, 400), prepare: () => ({ body: { token: 'no-such-token-000000', password: 'torque-wrench-5501' } }) },
   { method: 'GET', path: '/api/account', expect: e(401, 401, 200, 200, 200, 200) },
   { method: 'PATCH', path: '/api/account', expect: e(401, 401, 200, 200, 200, 200), prepare: (w, a) => ({ body: { name: a === 'anon' || a === 'foreignRig' ? 'x' : w[a].user.name } }) },
+  { method: 'POST', path: '/api/account/sign-out-everywhere', expect: e(401, 401, 200, 200, 200, 200), prepare: (_w, a) => throwawaySession(a) },
   { method: 'POST', path: '/api/account/password', expect: e(401, 401, 400, 400, 400, 400), prepare: () => ({ body: { currentPassword: 'not-the-password', newPassword: 'torque-wrench-5501' } }) },
 
   // teams and members
