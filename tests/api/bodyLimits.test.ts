@@ -56,15 +56,17 @@ describe('body limits and timeouts', () => {
     expect(await testDb()('findings').where({ build_id: w.build.id }).count('* as count')).toEqual(before)
   })
 
-  it('a body with no Content-Length (chunked) is counted as it arrives: past the limit, 413', async () => {
-    const status = await new Promise<number>((resolve, reject) => {
+  it('a body with no Content-Length (chunked) is counted as it arrives: past the limit, 413 (or the connection closed at once)', async () => {
+    const started = performance.now()
+    const outcome = await new Promise<number | 'closed'>((resolve) => {
       const req = request(new URL('/api/auth/login', BASE_URL), { method: 'POST', headers: { 'content-type': 'application/json', 'transfer-encoding': 'chunked' } }, (res) => {
         res.resume()
         resolve(res.statusCode!)
         req.destroy()
       })
-      // the server may close the connection while this is still sending
-      req.on('error', err => setTimeout(() => reject(err), 500))
+      // The server closes the connection after its 413 while this is still sending; when the
+      // close overtakes the answer (a reset drops it), the refusal is the close itself.
+      req.on('error', () => setTimeout(() => resolve('closed'), 2000))
       const chunk = Buffer.from(`{"pad":"${'z'.repeat(64 * 1024)}`)
       let sent = 0
       const more = () => {
@@ -75,7 +77,9 @@ describe('body limits and timeouts', () => {
       }
       more()
     })
-    expect(status).toBe(413)
+    expect([413, 'closed']).toContain(outcome)
+    // refused as soon as the limit was passed, not after the whole body
+    expect(performance.now() - started).toBeLessThan(10_000)
   })
 
   it('a reading of 10,000 values (the largest legitimate body) still goes through', async () => {

@@ -19,7 +19,7 @@ describe('cross-site requests', () => {
     expect((await w.engineer.client.post(path, body, { referer: 'https://elsewhere.example/page' })).status).toBe(403)
     expect((await w.engineer.client.post(path, body, { origin: 'null' })).status).toBe(403)
     expect((await w.engineer.client.request('PATCH', '/api/account', { name: 'Renamed Elsewhere' }, elsewhere)).status).toBe(403)
-    expect((await w.engineer.client.request('DELETE', `/api/files/${'0'.repeat(8)}-0000-4000-8000-${'0'.repeat(12)}`, undefined, elsewhere)).status).toBe(403)
+    expect((await w.engineer.client.request('DELETE', `/api/v1/files/${'0'.repeat(8)}-0000-4000-8000-${'0'.repeat(12)}`, undefined, elsewhere)).status).toBe(403)
     expect(await count()).toBe(before)
     expect((await w.engineer.client.post(path, body, { origin: new URL(BASE_URL).origin })).status).toBe(201)
     expect((await w.engineer.client.post(path, body, { referer: `${BASE_URL}/builds/${w.build.slug}` })).status).toBe(201)

@@ -20,7 +20,7 @@ describe('rows the caller can’t see answer as missing ones', () => {
   beforeAll(async () => {
     w = await makeWorld()
     finding = (await w.engineer.client.post(`/api/v1/builds/${w.build.slug}/findings`, { title: 'Hinge pin walks out', severity: 'degrades' })).body.id
-    fix = (await w.engineer.client.post(`/api/findings/${finding}/fixes`, { description: 'Circlip groove' })).body.id
+    fix = (await w.engineer.client.post(`/api/v1/findings/${finding}/fixes`, { description: 'Circlip groove' })).body.id
     file = (await uploadOk(w.engineer.client, w.build.slug, 'hinge.txt', 'pin notes\n')).id
     const t = await w.owner.client.post(`/api/v1/builds/${w.build.slug}/targets`, { key: `hinge_${randomBytes(3).toString('hex')}`, name: 'Hinge', unit: 'N', comparator: 'atLeast', threshold: 10 })
     const r = await w.owner.client.post(`/api/v1/builds/${w.build.slug}/revisions`, { label: `H${randomBytes(3).toString('hex')}` })
@@ -44,16 +44,16 @@ describe('rows the caller can’t see answer as missing ones', () => {
 
   // [what, who asks, the request for an id]
   const cases: [string, () => Client, (id: () => string) => Promise<ApiResponse>, () => string][] = [
-    ['GET a finding', outsider, id => outsider().get(`/api/findings/${id()}`), () => finding],
-    ['PATCH a finding', outsider, id => outsider().patch(`/api/findings/${id()}`, { version: 1, title: 'x' }), () => finding],
-    ['comment on a finding', outsider, id => outsider().post(`/api/findings/${id()}/comments`, { body: 'x' }), () => finding],
-    ['add a fix to a finding', outsider, id => outsider().post(`/api/findings/${id()}/fixes`, { description: 'x' }), () => finding],
+    ['GET a finding', outsider, id => outsider().get(`/api/v1/findings/${id()}`), () => finding],
+    ['PATCH a finding', outsider, id => outsider().patch(`/api/v1/findings/${id()}`, { version: 1, title: 'x' }), () => finding],
+    ['comment on a finding', outsider, id => outsider().post(`/api/v1/findings/${id()}/comments`, { body: 'x' }), () => finding],
+    ['add a fix to a finding', outsider, id => outsider().post(`/api/v1/findings/${id()}/fixes`, { description: 'x' }), () => finding],
     ['move a finding with a rig token of another build', rig, id => rig().post(`/api/v1/findings/${id()}/move`, { lane: 'traced', version: 1 }), () => finding],
     ['move a finding as another team’s member', outsider, id => outsider().post(`/api/v1/findings/${id()}/move`, { lane: 'traced', version: 1 }), () => finding],
     ['GET a file', outsider, id => outsider().get(`/api/v1/files/${id()}`), () => file],
     ['GET a file with a rig token of another build', rig, id => rig().get(`/api/v1/files/${id()}`), () => file],
-    ['DELETE a file', outsider, id => outsider().delete(`/api/files/${id()}`), () => file],
-    ['DELETE a reading of another build through one’s own', outsider, id => outsider().delete(`/api/builds/${w.foreignBuild.slug}/readings/${id()}`), () => reading],
+    ['DELETE a file', outsider, id => outsider().delete(`/api/v1/files/${id()}`), () => file],
+    ['DELETE a reading of another build through one’s own', outsider, id => outsider().delete(`/api/v1/builds/${w.foreignBuild.slug}/readings/${id()}`), () => reading],
     ['DELETE a token of another build through one’s own', outsider, id => outsider().delete(`/api/builds/${w.foreignBuild.slug}/tokens/${id()}`), () => token],
     ['resend an invitation of another team through one’s own', outsider, id => outsider().post(`/api/teams/${w.outsider.team.slug}/invitations/${id()}/resend`), () => invitation],
     ['DELETE an invitation of another team through one’s own', outsider, id => outsider().delete(`/api/teams/${w.outsider.team.slug}/invitations/${id()}`), () => invitation],
@@ -67,8 +67,8 @@ describe('rows the caller can’t see answer as missing ones', () => {
 
   it('a fix of a finding one can’t see, through one’s own finding: the same 404 as a random id', async () => {
     const mine = (await w.outsider.client.post(`/api/v1/builds/${w.foreignBuild.slug}/findings`, { title: 'Own finding', severity: 'degrades' })).body.id
-    const theirs = await w.outsider.client.patch(`/api/findings/${mine}/fixes/${fix}`, { state: 'in-progress' })
-    const random = await w.outsider.client.patch(`/api/findings/${mine}/fixes/${randomUUID()}`, { state: 'in-progress' })
+    const theirs = await w.outsider.client.patch(`/api/v1/findings/${mine}/fixes/${fix}`, { state: 'in-progress' })
+    const random = await w.outsider.client.patch(`/api/v1/findings/${mine}/fixes/${randomUUID()}`, { state: 'in-progress' })
     same(theirs, random)
   })
 })

@@ -34,8 +34,8 @@ describe('GET /api/health', () => {
       // signed in, anonymous, reading and writing: a 503 the client can retry, never a 500
       const calls = [
         () => person.client.get('/api/account'),
-        () => person.client.get('/api/teams'),
-        () => person.client.post('/api/teams', { name: 'Made during the outage' }),
+        () => person.client.get('/api/v1/teams'),
+        () => person.client.post('/api/v1/teams', { name: 'Made during the outage' }),
         () => new Client().post('/api/auth/login', { email: person.email, password: person.password }),
         () => new Client().post('/api/auth/signup', { name: 'Late Person', email: 'late@example.test', password: 'torque-wrench-5501' }),
       ]

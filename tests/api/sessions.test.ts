@@ -16,7 +16,7 @@ describe('sessions and roles', () => {
     const replay = new Client()
     replay.cookie = copy
     expect((await replay.get('/api/account')).status).toBe(401)
-    expect((await replay.post('/api/teams', { name: 'After sign-out' })).status).toBe(401)
+    expect((await replay.post('/api/v1/teams', { name: 'After sign-out' })).status).toBe(401)
     expect((await other.get('/api/account')).status).toBe(200)
   })
 
@@ -52,10 +52,10 @@ describe('sessions and roles', () => {
     await addMember(w.team.id, p.user.id, 'engineer')
     const f = await uploadOk(p.client, w.build.slug, 'mine.txt', 'uploaded while an engineer')
     await testDb()('memberships').where({ team_id: w.team.id, user_id: p.user.id }).update({ role: 'reviewer' })
-    const res = await p.client.delete(`/api/files/${f.id}`)
+    const res = await p.client.delete(`/api/v1/files/${f.id}`)
     expect(res.status).toBe(403)
     expect(await testDb()('files').where({ id: f.id }).first('id')).toBeTruthy()
     await testDb()('memberships').where({ team_id: w.team.id, user_id: p.user.id }).update({ role: 'engineer' })
-    expect((await p.client.delete(`/api/files/${f.id}`)).status).toBe(204)
+    expect((await p.client.delete(`/api/v1/files/${f.id}`)).status).toBe(204)
   })
 })

@@ -37,19 +37,19 @@ describe('text PostgreSQL can’t store', () => {
   const cases: [string, string, () => Promise<ApiResponse>][] = [
     ['a NUL in the account name', 'name', () => w.engineer.client.patch('/api/account', { name: NUL })],
     ['a NUL in a sign-up name', 'name', () => new Client().post('/api/auth/signup', { name: NUL, email: `nul-${uniqueKey()}@example.test`, password: 'long-enough-pass-1' })],
-    ['a lone surrogate in a new team’s name', 'name', () => w.owner.client.post('/api/teams', { name: LONE })],
+    ['a lone surrogate in a new team’s name', 'name', () => w.owner.client.post('/api/v1/teams', { name: LONE })],
     ['a lone surrogate in a team’s new name', 'name', () => w.owner.client.patch(`/api/teams/${w.team.slug}`, { name: LONE })],
     ['a NUL in a rig token’s name', 'name', () => w.owner.client.post(`/api/builds/${w.build.slug}/tokens`, { name: NUL })],
     ['a lone surrogate in a rig token’s name', 'name', () => w.owner.client.post(`/api/builds/${w.build.slug}/tokens`, { name: LONE })],
-    ['a NUL in a comment', 'body', () => w.reviewer.client.post(`/api/findings/${findingId}/comments`, { body: NUL })],
-    ['a lone surrogate in a fix', 'description', () => w.engineer.client.post(`/api/findings/${findingId}/fixes`, { description: LONE })],
+    ['a NUL in a comment', 'body', () => w.reviewer.client.post(`/api/v1/findings/${findingId}/comments`, { body: NUL })],
+    ['a lone surrogate in a fix', 'description', () => w.engineer.client.post(`/api/v1/findings/${findingId}/fixes`, { description: LONE })],
     ['a NUL in a finding’s title', 'title', () => w.engineer.client.post(`/api/v1/builds/${w.build.slug}/findings`, { title: NUL, severity: 'degrades' })],
     ['a lone surrogate in a finding’s description', 'description', () => w.engineer.client.post(`/api/v1/builds/${w.build.slug}/findings`, { title: 'Fine title', description: LONE, severity: 'degrades' })],
     ['a lone surrogate in a revision’s second change', 'changes.1', () => w.engineer.client.post(`/api/v1/builds/${w.build.slug}/revisions`, { label: uniqueKey('R'), changes: ['thicker lugs', LONE] })],
     ['a NUL in an object key', '"k\\u0000"', () => w.engineer.client.patch('/api/account', { name: 'Eno Engineer', ['k\u0000']: 1 })],
-    ['a NUL in the file search', 'q', () => w.engineer.client.get(`/api/builds/${w.build.slug}/files?q=a%00b`)],
-    ['a NUL in the file search’s revision', 'revision', () => w.engineer.client.get(`/api/builds/${w.build.slug}/files?revision=R%001`)],
-    ['a NUL in the file search’s target', 'target', () => w.engineer.client.get(`/api/builds/${w.build.slug}/files?target=t%00`)],
+    ['a NUL in the file search', 'q', () => w.engineer.client.get(`/api/v1/builds/${w.build.slug}/files?q=a%00b`)],
+    ['a NUL in the file search’s revision', 'revision', () => w.engineer.client.get(`/api/v1/builds/${w.build.slug}/files?revision=R%001`)],
+    ['a NUL in the file search’s target', 'target', () => w.engineer.client.get(`/api/v1/builds/${w.build.slug}/files?target=t%00`)],
   ]
 
   it.each(cases)('400 for %s, naming it', async (_name, path, call) => {
@@ -58,9 +58,9 @@ describe('text PostgreSQL can’t store', () => {
 
   // a route parameter names a row, and no row has such a name: 404, as for any other missing one
   it.each([
-    ['a NUL in a revision label in the path', 'label', () => w.engineer.client.get(`/api/builds/${w.build.slug}/revisions/R%001`)],
-    ['a NUL in a target key in the path', 'key', () => w.engineer.client.patch(`/api/builds/${w.build.slug}/targets/t%00`, { name: 'x' })],
-    ['a NUL in a revision label to sign off', 'label', () => w.owner.client.post(`/api/builds/${w.build.slug}/revisions/R%00/freeze`)],
+    ['a NUL in a revision label in the path', 'label', () => w.engineer.client.get(`/api/v1/builds/${w.build.slug}/revisions/R%001`)],
+    ['a NUL in a target key in the path', 'key', () => w.engineer.client.patch(`/api/v1/builds/${w.build.slug}/targets/t%00`, { name: 'x' })],
+    ['a NUL in a revision label to sign off', 'label', () => w.owner.client.post(`/api/v1/builds/${w.build.slug}/revisions/R%00/freeze`)],
   ] as [string, string, () => Promise<ApiResponse>][])('404 for %s, naming it', async (_name, path, call) => {
     await refused(call, path, 404)
   })
@@ -71,7 +71,7 @@ describe('text PostgreSQL can’t store', () => {
 
   it('a NUL in the import’s revision: 400 naming it', async () => {
     const body = await importBody(w)
-    await refused(() => w.engineer.client.post(`/api/builds/${w.build.slug}/import`, { ...body, revision: `${body.revision}\u0000` }), 'revision')
+    await refused(() => w.engineer.client.post(`/api/v1/builds/${w.build.slug}/import`, { ...body, revision: `${body.revision}\u0000` }), 'revision')
   })
 
   it('a NUL inside the CSV, past the part of the file its type is sniffed from: 422 naming the line', async () => {
@@ -82,14 +82,14 @@ describe('text PostgreSQL can’t store', () => {
     const file = await uploadOk(w.engineer.client, w.build.slug, 'late-nul.csv', `sample,torque_nm,revision\n${rows.join('\n')}\n`)
     expect(file.contentType).toMatch(/^text\//)
     const before = await dbFingerprint()
-    const res = await w.engineer.client.post(`/api/builds/${w.build.slug}/import`, { ...body, file: file.id, revision: null, revisionColumn: 'revision' })
+    const res = await w.engineer.client.post(`/api/v1/builds/${w.build.slug}/import`, { ...body, file: file.id, revision: null, revisionColumn: 'revision' })
     expect(res.status, JSON.stringify(res.body)).toBe(422)
     expect(res.body.message).toMatch(/Line 5002: a cell holds the NUL character/)
     expect(changedTables(before, await dbFingerprint())).toEqual([])
   })
 
   it('text that is well-formed is stored as sent (a surrogate pair, a tab, a newline)', async () => {
-    const res = await w.engineer.client.post(`/api/findings/${findingId}/comments`, { body: 'Gauge reads 😀\tfine\nnow' })
+    const res = await w.engineer.client.post(`/api/v1/findings/${findingId}/comments`, { body: 'Gauge reads 😀\tfine\nnow' })
     expect(res.status).toBe(201)
   })
 })
