@@ -48,3 +48,11 @@ export const RevisionPatch = z.object({
 export const UnfreezeBody = z.object({
   reason: z.string({ error: 'Say why the revision is reopened' }).trim().min(1, 'Say why the revision is reopened').max(1000, 'A reason has at most 1,000 characters'),
 })
+
+const compareLabel = (which: string) => z.string({ error: `Give revision ${which}'s label` }).trim().min(1, `Give revision ${which}'s label`).max(40, 'A label has at most 40 characters')
+
+/** GET /api/v1/builds/:build/compare?a=…&b=…: the two revisions' labels. */
+export const CompareQuery = z.object({
+  a: compareLabel('A').meta({ description: 'the label of the revision on the left' }),
+  b: compareLabel('B').meta({ description: 'the label of the revision on the right' }),
+})

@@ -5,9 +5,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { z } from 'zod'
 import { apiRoutes, type ApiRoute } from '../../server/utils/api/routes'
 import {
-  BuildOut, FindingOut, MoveResultOut, ReadingCreatedOut, RevisionOut, ScoreboardOut, TargetOut, TeamOut,
+  BoardOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, FileListOut, FindingDetailOut, FindingOut, FixOut,
+  MoveResultOut, OpenFindingsOut, ReadingCreatedOut, RevisionDetailOut, RevisionOut, ScoreboardOut, TargetDetailOut,
+  TargetOut, TeamCreatedOut, TeamOut,
 } from '../../server/utils/api/responses'
 import { Client, closeTestDb, makeWorld, type World } from '../support/api'
+import { upload } from '../support/files'
 import { BASE_URL, ROOT } from '../support/env'
 import { routes } from '../support/routeTable'
 
@@ -189,6 +192,20 @@ describe('GET /api/v1/openapi.json', () => {
     expect(problems).toEqual([])
   })
 
+  it('says a rig token may call a route exactly when its handler lets one in', () => {
+    const files = handlerFiles()
+    const problems: string[] = []
+    for (const route of apiRoutes.filter(r => r.access !== 'public')) {
+      const source = readFileSync(join(ROOT, files.get(key(route))!), 'utf8')
+      const refuses = /\brefuseRigToken\(event\)/.test(source)
+      const allows = /allowRigToken: true|\buseRigToken\(/.test(source)
+      if (refuses === allows) { problems.push(`${key(route)}: the handler neither lets a rig token in nor refuses it plainly`); continue }
+      const documented = route.access === 'session-or-rig'
+      if (documented !== allows) problems.push(`${key(route)}: documented as ${route.access}, but the handler ${allows ? 'lets a rig token in' : 'refuses a rig token'}`)
+    }
+    expect(problems).toEqual([])
+  })
+
   it('describes each route’s body and query exactly as the handler’s zod schema does, field by field', () => {
     const problems = apiRoutes.flatMap(route => disagreements(doc, route).map(p => `${key(route)}: ${p}`))
     expect(problems).toEqual([])
@@ -293,8 +310,57 @@ describe('the documented answers', () => {
     const moved = await c.post(`/api/v1/findings/${finding.body.id}/move`, { lane: 'traced', version: finding.body.version })
     expect(moved.status).toBe(200)
     check(MoveResultOut, moved.body, 'move')
+    const fix = await c.post(`/api/v1/findings/${finding.body.id}/fixes`, { description: 'Thicker lead to the connector', state: 'landed', landedIn: 'R2' })
+    expect(fix.status).toBe(201)
+    check(FixOut, fix.body, 'fix')
+    const comment = await c.post(`/api/v1/findings/${finding.body.id}/comments`, { body: 'Measured 61 °C at the shell after the **climb**' })
+    expect(comment.status).toBe(201)
+    check(CommentOut, comment.body, 'comment')
+    const file = await upload(c, world.build.slug, 'climb-log.txt', 'lap 1: 61 C at the connector\n', { finding: finding.body.id, revision: 'R2' })
+    expect(file.status).toBe(201)
+
+    // the routes that moved into /api/v1, read back after the writes above
+    const answers: [z.ZodType, string, string][] = [
+      [TargetDetailOut, `${b}/targets/top_speed`, 'target detail'],
+      [z.array(RevisionOut), `${b}/revisions`, 'revisions'],
+      [RevisionDetailOut, `${b}/revisions/R2`, 'revision detail'],
+      [ComparisonOut, `${b}/compare?a=R1&b=R2`, 'comparison'],
+      [BoardOut, `${b}/findings/board`, 'board'],
+      [OpenFindingsOut, `${b}/findings/open`, 'open findings'],
+      [FindingDetailOut, `/api/v1/findings/${finding.body.id}`, 'finding detail'],
+      [FileListOut, `${b}/files`, 'files'],
+    ]
+    for (const [schema, url, what] of answers) {
+      const res = await c.get(url)
+      expect(res.status, what).toBe(200)
+      check(schema, res.body, what)
+    }
+    // the answers hold what was written, so the schemas were checked against full answers
+    const detail = await c.get(`${b}/revisions/R2`)
+    expect(detail.body.moved.targets[0]).toMatchObject({ target: { key: 'top_speed' }, a: { readings: 2 }, b: { readings: 1 } })
+    expect(detail.body.fixesLanded.map((f: { id: string }) => f.id)).toEqual([fix.body.id])
+    const board = await c.get(`${b}/findings/board`)
+    expect(board.body.findings).toEqual([expect.objectContaining({ id: finding.body.id, lane: 'traced', comments: 1 })])
+    const found = await c.get(`/api/v1/findings/${finding.body.id}`)
+    expect(found.body.commentList[0].html).toContain('<strong>climb</strong>')
+    expect((await c.get(`${b}/files`)).body.items).toEqual([expect.objectContaining({ id: file.body.id, revision: 'R2', finding: { id: finding.body.id, title: expect.any(String) } })])
+
+    const edited = await c.patch(`${b}/targets/top_speed`, { stretch: 28 })
+    expect(edited.status).toBe(200)
+    check(TargetOut, edited.body, 'target edit')
+    const revised = await c.patch(`${b}/revisions/R1`, { summary: 'First frame' })
+    expect(revised.status).toBe(200)
+    check(RevisionOut, revised.body, 'revision edit')
+    const renamed = await c.patch(b, { summary: 'Cargo trike, second frame' })
+    expect(renamed.status).toBe(200)
+    check(BuildUpdatedOut, renamed.body, 'build edit')
+    const team = await c.post('/api/v1/teams', { name: 'Frame shop' })
+    expect(team.status).toBe(201)
+    check(TeamCreatedOut, team.body, 'team')
     // a check that can tell: an answer missing a documented field is refused
     const { unit: _unit, ...withoutUnit } = target.body
     expect(TargetOut.safeParse(withoutUnit).success).toBe(false)
+    const { movers: _movers, ...withoutMovers } = (await c.get(`${b}/targets/top_speed`)).body
+    expect(TargetDetailOut.safeParse(withoutMovers).success).toBe(false)
   })
 })

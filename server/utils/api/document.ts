@@ -1,7 +1,9 @@
 import { z } from 'zod'
 import {
-  ApiError, BuildEventOut, BuildOut, FileCreatedOut, FindingOut, FixOut, ForecastOut, HistoryEntryOut, MoveResultOut,
-  ReadingCreatedOut, RevisionOut, ScoreboardOut, SignedInOut, SubscriptionOut, TargetOut, TeamOut,
+  ApiError, BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
+  FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixLandedOut, FixOut, ForecastOut, HistoryEntryOut,
+  MoveResultOut, OpenFindingsOut, ReadingCreatedOut, ReadingDetailOut, RevisionDetailOut, RevisionOut, ScoreboardOut,
+  SignedInOut, SubscriptionOut, TargetDetailOut, TargetOrderOut, TargetOut, TeamCreatedOut, TeamOut,
 } from './responses'
 import { API_TAGS, apiRoutes, type ApiAccess, type ApiAnswer, type ApiRoute } from './routes'
 
@@ -37,6 +39,21 @@ const ANSWERS: Record<string, z.ZodType> = {
   Event: BuildEventOut,
   Subscription: SubscriptionOut,
   SignedIn: SignedInOut,
+  TeamCreated: TeamCreatedOut,
+  BuildUpdated: BuildUpdatedOut,
+  TargetOrder: TargetOrderOut,
+  ReadingDetail: ReadingDetailOut,
+  FixLanded: FixLandedOut,
+  TargetDetail: TargetDetailOut,
+  Comparison: ComparisonOut,
+  RevisionDetail: RevisionDetailOut,
+  Board: BoardOut,
+  OpenFindings: OpenFindingsOut,
+  Comment: CommentOut,
+  FindingDetail: FindingDetailOut,
+  FileList: FileListOut,
+  CsvPreview: CsvPreviewOut,
+  CsvImported: CsvImportedOut,
 }
 
 const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` })

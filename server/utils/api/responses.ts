@@ -1,8 +1,12 @@
 import { z } from 'zod'
-import type { FileCreated } from '../../../shared/types/files'
-import type { FindingSummary, FixView } from '../../../shared/types/findings'
-import type { HistoryEntry, ReadingCreated, RevisionView, Scoreboard, TargetView } from '../../../shared/types/api'
+import type { CsvImported, CsvPreview, FileCreated, FileList } from '../../../shared/types/files'
+import type { BoardData, CommentView, FindingDetail, FindingSummary, FixView, OpenFindingsByTarget } from '../../../shared/types/findings'
+import type {
+  Comparison, HistoryEntry, ReadingCreated, RevisionDetail, RevisionView, Scoreboard, TargetDetail, TargetView,
+} from '../../../shared/types/api'
 import type { ForecastView } from '../../../shared/utils/forecast'
+import { FILE_KINDS } from '../../../shared/utils/contentTypes'
+import type { buildView } from '../measure/scoreboard'
 import { FREQUENCY_VALUES } from '../../../shared/utils/digestSchemas'
 import { FIX_STATES, LANES, SEVERITIES } from '../../../shared/utils/lanes'
 import { ROLES } from '../../../shared/utils/roles'
@@ -36,6 +40,17 @@ const statsShape = {
 }
 
 const measuredStatus = z.enum(['met', 'marginal', 'short'])
+const targetStatus = z.enum(['met', 'marginal', 'short', 'untested'])
+const movementReason = z.enum(['welch', 'noise-band', 'uncertainty', 'not-enough-data'])
+const movementShape = {
+  delta: nullableNumber('mean − the other revision’s mean; null when a side has no value'),
+  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2'),
+  movement: z.enum(['gained', 'slipped', 'steady']).nullable(),
+  real: z.boolean().nullable(),
+  reason: described(movementReason.nullable(), 'the rule that decided'),
+}
+const BuildRef = z.object({ id: z.string(), slug: z.string(), name: z.string() })
+const role = described(z.enum(ROLES), 'the caller’s role in the build’s team')
 
 export const TeamOut = z.object({ id: z.string(), name: z.string(), slug: z.string(), role: z.enum(ROLES) })
 
@@ -112,7 +127,7 @@ export const HistoryEntryOut = z.object({
   movement: z.enum(['gained', 'slipped', 'steady']).nullable(),
   real: z.boolean().nullable(),
   reason: described(
-    z.enum(['welch', 'noise-band', 'uncertainty', 'not-enough-data']).nullable(),
+    movementReason.nullable(),
     'the rule that decided; `uncertainty` (derived targets): real when |Δ| > 2·√(u₁² + u₂²)',
   ),
   budget: described(
@@ -149,6 +164,101 @@ export const ScoreboardOut = z.object({
   })),
 })
 
+export const TeamCreatedOut = TeamOut.extend({ personal: described(z.boolean(), 'a one-person team made at sign-up (false here)') })
+
+export const BuildUpdatedOut = z.object({
+  id: z.string(),
+  name: z.string(),
+  slug: z.string(),
+  summary: z.string(),
+  archived: z.boolean(),
+  archivedAt: z.string().nullable(),
+  createdAt: z.string(),
+})
+
+export const TargetOrderOut = z.object({ keys: described(z.array(z.string()), 'the active targets’ keys in their new strip order') })
+
+export const ReadingDetailOut = z.object({
+  id: z.string(),
+  revision: z.string(),
+  n: described(z.int(), 'number of samples'),
+  stats: described(z.object(statsShape), 'the statistics of this reading alone, in the display unit'),
+  status: measuredStatus,
+  unitEntered: z.string(),
+  valuesEntered: described(z.array(z.number()), 'the samples as entered, in unitEntered'),
+  values: described(z.array(z.number()), 'the same samples in the target’s display unit'),
+  method: z.string(),
+  resolutionEntered: z.number().nullable(),
+  resolution: nullableNumber('in the display unit'),
+  takenAt: z.string(),
+  by: described(z.string().nullable(), 'who recorded it (a person’s name, or the rig token’s label)'),
+  rig: described(z.boolean(), 'recorded with a rig token'),
+  notes: z.string(),
+  createdAt: z.string(),
+})
+
+export const FixLandedOut = z.object({
+  id: z.string(),
+  description: z.string(),
+  revision: described(z.string(), 'the label of the revision it landed in'),
+  finding: z.object({ id: z.string(), title: z.string(), severity: z.string(), lane: z.string() }),
+  targets: described(z.array(z.string()), 'keys of the targets the fix’s finding hurts'),
+})
+
+const CantEvaluateOut = z.object({ revision: z.string(), reason: z.string() })
+
+export const TargetDetailOut = z.object({
+  target: TargetOut,
+  build: BuildRef,
+  role,
+  status: targetStatus,
+  latest: HistoryEntryOut.nullable(),
+  margin: nullableNumber('% from the threshold, positive on the good side'),
+  history: described(z.array(HistoryEntryOut), 'one entry per revision with readings (derived: with a value), oldest first'),
+  cantEvaluate: z.array(CantEvaluateOut),
+  readings: described(z.array(ReadingDetailOut), 'every reading of the target'),
+  revisions: described(z.array(z.string()), 'every revision’s label, oldest first'),
+  forecast: ForecastOut,
+  movers: described(
+    z.array(z.object({ revision: z.string(), parent: z.string().nullable(), summary: z.string(), changes: z.array(z.string()), fixes: z.array(FixLandedOut), ...movementShape })),
+    'the revisions with a value, real movements first (by |delta|, then p), with their changes and the fixes that landed in them',
+  ),
+  inputs: described(z.array(z.object({ key: z.string(), name: z.string(), unit: z.string(), derived: z.boolean() })), 'a derived target’s inputs'),
+})
+
+const CompareSideOut = z.object({ ...statsShape, readings: described(z.int(), 'readings pooled'), status: measuredStatus })
+const ParameterSide = z.object({ value: z.union([z.number(), z.string()]), unit: z.string().nullable() })
+
+export const ComparisonOut = z.object({
+  build: BuildRef,
+  a: RevisionOut,
+  b: RevisionOut,
+  targets: described(
+    z.array(z.object({
+      target: TargetOut,
+      a: CompareSideOut.nullable(),
+      b: CompareSideOut.nullable(),
+      ...movementShape,
+      delta: nullableNumber('b − a; null when a side has no value'),
+      note: described(z.string().nullable(), 'why there is no comparison, e.g. "R3 has no reading of this target"'),
+    })),
+    'every active target, in strip order',
+  ),
+  parameters: z.array(z.object({ name: z.string(), a: ParameterSide.nullable(), b: ParameterSide.nullable(), differs: z.boolean() })),
+})
+
+export const RevisionDetailOut = RevisionOut.extend({
+  build: BuildRef,
+  role,
+  targets: z.array(TargetOut.extend({
+    stats: described(HistoryEntryOut.nullable(), 'the target’s pooled statistics on this revision'),
+    cantEvaluate: described(z.string().nullable(), 'derived targets: why there is no value on this revision'),
+    readings: z.array(ReadingDetailOut),
+  })),
+  moved: described(ComparisonOut.nullable(), 'what this revision moved against its parent (real movements first); null without a parent'),
+  fixesLanded: z.array(FixLandedOut),
+})
+
 export const FixOut = z.object({
   id: z.string(),
   description: z.string(),
@@ -178,12 +288,121 @@ export const MoveResultOut = z.object({
   override: described(z.boolean(), 'an Owner’s override let it in'),
 })
 
+const BoardMemberOut = z.object({ id: z.string(), name: z.string() })
+const BoardTargetOut = z.object({
+  key: z.string(),
+  name: z.string(),
+  quantity: z.string(),
+  caution: described(z.boolean(), 'the number touches something that can hurt'),
+})
+const cardFacts = {
+  description: described(z.string(), 'the Markdown source'),
+  comments: described(z.int(), 'how many comments'),
+  verifiedOn: described(z.string().nullable(), 'the revision whose readings would let it close now'),
+  closeBlocker: described(z.string().nullable(), 'why it can’t close yet (null when it can)'),
+}
+
+export const BoardOut = z.object({
+  build: BuildRef,
+  role,
+  findings: described(
+    z.array(FindingOut.omit({ fixes: true, createdAt: true, updatedAt: true }).extend({
+      ...cardFacts,
+      fixes: z.array(FixOut.pick({ state: true, owner: true, dueOn: true, landedIn: true })),
+    })),
+    'every card of the board: a finding without its times or its fixes’ texts',
+  ),
+  members: z.array(BoardMemberOut),
+  targets: z.array(BoardTargetOut),
+  revisions: described(z.array(z.string()), 'labels, oldest first'),
+})
+
+export const OpenFindingsOut = z.object({
+  canFile: described(z.boolean(), 'the caller may file findings on this build'),
+  byTarget: described(
+    z.record(z.string(), z.array(z.object({ id: z.string(), title: z.string(), severity: z.enum(SEVERITIES) }))),
+    'per target key, the open findings that hurt it',
+  ),
+})
+
+export const CommentOut = z.object({
+  id: z.string(),
+  body: described(z.string(), 'the Markdown source'),
+  html: described(z.string(), 'rendered on the server and sanitized'),
+  author: z.string().nullable(),
+  mentions: described(z.array(BoardMemberOut), 'the team members it names with @'),
+  createdAt: z.string(),
+})
+
+export const FindingDetailOut = FindingOut.extend({
+  ...cardFacts,
+  descriptionHtml: described(z.string(), 'the description rendered on the server and sanitized'),
+  build: BuildRef,
+  role,
+  targetInfo: z.array(BoardTargetOut.extend({ unit: z.string(), status: targetStatus })),
+  verification: z.object({ revision: z.string().nullable(), reason: z.string() }),
+  commentList: z.array(CommentOut),
+  history: z.array(z.object({
+    id: z.int(),
+    kind: z.enum(['created', 'edited', 'moved', 'fix-added', 'fix-edited']),
+    at: z.string(),
+    actor: z.string(),
+    detail: z.record(z.string(), z.unknown()),
+  })),
+  members: z.array(BoardMemberOut),
+  revisions: z.array(z.string()),
+  buildTargets: described(z.array(BoardTargetOut), 'the build’s targets, for choosing the ones it hurts'),
+  createdBy: z.string().nullable(),
+  closedAt: z.string().nullable(),
+  override: described(z.object({ reason: z.string(), by: z.string().nullable() }).nullable(), 'an Owner’s override of a lane rule'),
+})
+
 export const FileCreatedOut = z.object({
   id: z.string(),
   name: described(z.string(), 'the client’s name without any directory, cleaned for display'),
   size: described(z.int(), 'bytes'),
   sha256: described(z.string(), 'hex; the download’s ETag is this in quotes'),
   contentType: described(z.string(), 'sniffed from the first bytes'),
+})
+
+export const FileListOut = z.object({
+  items: z.array(FileCreatedOut.extend({
+    kind: z.enum(FILE_KINDS as [typeof FILE_KINDS[number], ...typeof FILE_KINDS[number][]]),
+    inline: described(z.boolean(), 'opened in the browser rather than downloaded'),
+    url: described(z.string(), 'the bytes: GET /api/v1/files/{id}'),
+    createdAt: z.string(),
+    uploadedBy: described(z.string().nullable(), 'a person’s name, or "rig token …"'),
+    revision: z.string().nullable(),
+    reading: z.object({ id: z.string(), target: z.string(), targetName: z.string(), revision: z.string() }).nullable(),
+    finding: z.object({ id: z.string(), title: z.string() }).nullable(),
+    canDelete: described(z.boolean(), 'the caller may delete it (its uploader or an Owner)'),
+  })),
+  total: z.int(),
+  page: z.int(),
+  perPage: z.int(),
+})
+
+export const CsvPreviewOut = z.object({
+  file: z.object({ id: z.string(), name: z.string(), size: z.int() }),
+  delimiter: z.string(),
+  headerLine: described(z.int(), 'the header’s line in the file (1 unless blank lines come first)'),
+  columns: z.array(z.string()),
+  rows: described(z.array(z.object({ line: z.int(), cells: z.array(z.string()) })), 'the first rows, as text'),
+  totalRows: z.int(),
+  guess: described(
+    z.object({ value: z.string().nullable(), unit: z.string().nullable(), time: z.string().nullable(), revision: z.string().nullable() }),
+    'the columns that look like values, units, times and revisions',
+  ),
+  problem: described(z.string().nullable(), 'set when the file can’t be imported as it is (too large, not text)'),
+})
+
+export const CsvImportedOut = z.object({
+  file: z.object({ id: z.string(), name: z.string() }),
+  rows: z.int(),
+  readings: described(
+    z.array(ReadingCreatedOut.extend({ revision: z.string(), unitEntered: z.string(), n: z.int(), firstLine: z.int(), lastLine: z.int() })),
+    'one reading per revision, target and unit found in the file',
+  ),
 })
 
 export const BuildEventOut = z.object({
@@ -215,3 +434,14 @@ sameShape<Same<z.output<typeof ReadingCreatedOut>, ReadingCreated>>()
 sameShape<Same<z.output<typeof FixOut>, FixView>>()
 sameShape<Same<z.output<typeof FindingOut>, FindingSummary>>()
 sameShape<Same<z.output<typeof FileCreatedOut>, FileCreated>>()
+sameShape<Same<z.output<typeof TargetDetailOut>, TargetDetail>>()
+sameShape<Same<z.output<typeof ComparisonOut>, Comparison>>()
+sameShape<Same<z.output<typeof RevisionDetailOut>, RevisionDetail>>()
+sameShape<Same<z.output<typeof BuildUpdatedOut>, ReturnType<typeof buildView>>>()
+sameShape<Same<z.output<typeof BoardOut>, BoardData>>()
+sameShape<Same<z.output<typeof OpenFindingsOut>, OpenFindingsByTarget>>()
+sameShape<Same<z.output<typeof CommentOut>, CommentView>>()
+sameShape<Same<z.output<typeof FindingDetailOut>, FindingDetail>>()
+sameShape<Same<z.output<typeof FileListOut>, FileList>>()
+sameShape<Same<z.output<typeof CsvPreviewOut>, CsvPreview>>()
+sameShape<Same<z.output<typeof CsvImportedOut>, CsvImported>>()

@@ -1,15 +1,19 @@
 import { z } from 'zod'
-import { LoginBody } from '../../../shared/utils/accountSchemas'
-import { BuildBody } from '../../../shared/utils/buildSchemas'
+import { LoginBody, TeamBody } from '../../../shared/utils/accountSchemas'
+import { BuildBody, BuildPatch } from '../../../shared/utils/buildSchemas'
 import { EventListQuery, SubscriptionBody } from '../../../shared/utils/digestSchemas'
-import { UploadFields } from '../../../shared/utils/fileSchemas'
-import { FindingCreate, FindingListQuery, MoveBody } from '../../../shared/utils/findingSchemas'
-import { ReadingBody } from '../../../shared/utils/readingSchemas'
-import { RevisionBody } from '../../../shared/utils/revisionSchemas'
-import { TargetBody, TargetListQuery } from '../../../shared/utils/targetSchemas'
+import { CsvImportBody, CsvPreviewQuery, FileListQuery, UploadFields } from '../../../shared/utils/fileSchemas'
 import {
-  BuildEventOut, BuildOut, FileCreatedOut, FindingOut, MoveResultOut, ReadingCreatedOut, RevisionOut,
-  ScoreboardOut, SignedInOut, SubscriptionOut, TargetOut, TeamOut,
+  CommentBody, FindingCreate, FindingListQuery, FindingPatch, FixBody, FixPatch, MoveBody,
+} from '../../../shared/utils/findingSchemas'
+import { ReadingBody } from '../../../shared/utils/readingSchemas'
+import { CompareQuery, RevisionBody, RevisionPatch, UnfreezeBody } from '../../../shared/utils/revisionSchemas'
+import { TargetBody, TargetListQuery, TargetOrderBody, TargetPatch } from '../../../shared/utils/targetSchemas'
+import {
+  BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
+  FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixOut, MoveResultOut, OpenFindingsOut, ReadingCreatedOut,
+  RevisionDetailOut, RevisionOut, ScoreboardOut, SignedInOut, SubscriptionOut, TargetDetailOut, TargetOrderOut, TargetOut,
+  TeamCreatedOut, TeamOut,
 } from './responses'
 
 // The public API, one entry per route file: the OpenAPI document (./document.ts) is generated from
@@ -67,6 +71,12 @@ export interface ApiRoute {
 }
 
 const build = { build: 'The build’s id or slug' }
+const buildAnd = (more: Record<string, string>) => ({ ...build, ...more })
+const targetKey = { key: 'the target’s key' }
+const revisionLabel = { label: 'the revision’s label' }
+const findingId = { id: 'the finding’s id' }
+const noRig = ' (session only: a rig token gets 403)'
+const frozen409: [number, string] = [409, 'The revision is frozen (signed off); an Owner must reopen it first']
 
 const FilePart = z.object({
   file: z.string().meta({ format: 'binary', description: 'the file; its name is kept for display only, its type is sniffed from its bytes' }),
@@ -289,6 +299,311 @@ export const apiRoutes: ApiRoute[] = [
     bodyName: 'Subscription',
     ok: { 200: { description: 'OK', schema: SubscriptionOut } },
     errors: [400, 401, 403, 404],
+  },
+  // ---- builds and teams ----
+  {
+    method: 'post',
+    path: '/api/v1/teams',
+    tag: 'Builds',
+    summary: 'Create a team; the caller becomes its Owner' + noRig,
+    description: 'Without `slug` one is made from the name (with a number added when it is taken); a `slug` that is taken is refused with 409.',
+    access: 'session',
+    body: TeamBody,
+    bodyName: 'TeamCreate',
+    ok: { 201: { description: 'Created', schema: TeamCreatedOut } },
+    errors: [400, 401, 403, [409, 'The slug is taken']],
+  },
+  {
+    method: 'patch',
+    path: '/api/v1/builds/{build}',
+    tag: 'Builds',
+    summary: 'Rename, describe, archive or restore a build (Engineer or Owner)' + noRig,
+    access: 'session',
+    params: build,
+    body: BuildPatch,
+    bodyName: 'BuildUpdate',
+    ok: { 200: { description: 'OK', schema: BuildUpdatedOut } },
+    errors: [400, 401, 403, 404],
+  },
+  // ---- targets ----
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/targets/{key}',
+    tag: 'Targets',
+    summary: 'One target: its history per revision, every reading, the forecast and the revisions that moved it',
+    access: 'session-or-rig',
+    params: buildAnd(targetKey),
+    ok: { 200: { description: 'OK', schema: TargetDetailOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'patch',
+    path: '/api/v1/builds/{build}/targets/{key}',
+    tag: 'Targets',
+    summary: 'Edit, archive or restore a target (Engineer or Owner); thresholds in its display unit',
+    description: 'Fields left out keep their value; the thresholds after the edit are checked together (400 naming the field). '
+      + 'A new `unit` must be of the same quantity (422); a formula is checked as on creation (400, 422).',
+    access: 'session-or-rig',
+    params: buildAnd(targetKey),
+    body: TargetPatch,
+    bodyName: 'TargetUpdate',
+    ok: { 200: { description: 'OK', schema: TargetOut } },
+    errors: [400, 401, 403, 404, 422],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/targets/order',
+    tag: 'Targets',
+    summary: 'Put the active targets in a new strip order (Engineer or Owner)',
+    description: '`keys` lists every active target of the build exactly once; anything else is a 400 saying what is missing, doubled or unknown.',
+    access: 'session-or-rig',
+    params: build,
+    body: TargetOrderBody,
+    bodyName: 'TargetOrder',
+    ok: { 200: { description: 'OK', schema: TargetOrderOut } },
+    errors: [400, 401, 403, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/export/scoreboard.csv',
+    tag: 'Targets',
+    summary: 'The scoreboard as CSV: one row per target and revision, in each target’s display unit',
+    access: 'session-or-rig',
+    params: build,
+    ok: { 200: { description: 'A CSV file (UTF-8, as an attachment)', raw: 'text/csv' } },
+    errors: [401, 404],
+  },
+  // ---- revisions and readings ----
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/revisions',
+    tag: 'Revisions and readings',
+    summary: 'The build’s revisions, oldest first',
+    access: 'session-or-rig',
+    params: build,
+    ok: { 200: { description: 'OK', schema: RevisionOut, list: true } },
+    errors: [401, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/revisions/{label}',
+    tag: 'Revisions and readings',
+    summary: 'One revision: every target’s statistics and readings on it, what it moved against its parent, and the fixes that landed in it',
+    access: 'session-or-rig',
+    params: buildAnd(revisionLabel),
+    ok: { 200: { description: 'OK', schema: RevisionDetailOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'patch',
+    path: '/api/v1/builds/{build}/revisions/{label}',
+    tag: 'Revisions and readings',
+    summary: 'Edit a revision’s summary, changes, date and design parameters (Engineer or Owner)',
+    access: 'session-or-rig',
+    params: buildAnd(revisionLabel),
+    body: RevisionPatch,
+    bodyName: 'RevisionUpdate',
+    ok: { 200: { description: 'OK', schema: RevisionOut } },
+    errors: [400, 401, 403, 404, frozen409],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/revisions/{label}/freeze',
+    tag: 'Revisions and readings',
+    summary: 'Sign off a revision: it takes no more readings or edits (a Reviewer or an Owner)' + noRig,
+    description: 'An Engineer can’t sign off: 403.',
+    access: 'session',
+    params: buildAnd(revisionLabel),
+    ok: { 200: { description: 'OK', schema: RevisionOut } },
+    errors: [401, 403, 404, [409, 'The revision is already frozen']],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/revisions/{label}/unfreeze',
+    tag: 'Revisions and readings',
+    summary: 'Reopen a signed-off revision, saying why (Owner)' + noRig,
+    access: 'session',
+    params: buildAnd(revisionLabel),
+    body: UnfreezeBody,
+    bodyName: 'Unfreeze',
+    ok: { 200: { description: 'OK', schema: RevisionOut } },
+    errors: [400, 401, 403, 404, [409, 'The revision is not frozen']],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/compare',
+    tag: 'Revisions and readings',
+    summary: 'Two revisions side by side: every active target and the design parameters',
+    description: 'Per target: both sides’ pooled statistics, b − a and whether the change is real (Welch’s test, the noise band, or the uncertainties of a derived value).',
+    access: 'session-or-rig',
+    params: build,
+    query: CompareQuery,
+    ok: { 200: { description: 'OK', schema: ComparisonOut } },
+    errors: [400, 401, 404],
+  },
+  {
+    method: 'delete',
+    path: '/api/v1/builds/{build}/readings/{id}',
+    tag: 'Revisions and readings',
+    summary: 'Delete a reading (Engineer or Owner)' + noRig,
+    access: 'session',
+    params: buildAnd({ id: 'the reading’s id' }),
+    ok: { 204: { description: 'Deleted' } },
+    errors: [401, 403, 404, frozen409],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/export/readings.csv',
+    tag: 'Revisions and readings',
+    summary: 'Every sample of the build’s readings as CSV: as entered, and in SI',
+    access: 'session-or-rig',
+    params: build,
+    ok: { 200: { description: 'A CSV file (UTF-8, as an attachment), streamed', raw: 'text/csv' } },
+    errors: [401, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/import/preview',
+    tag: 'Revisions and readings',
+    summary: 'The header and first rows of an uploaded CSV file, with a guess at its columns (Engineer or Owner)',
+    description: 'Upload the file first (POST /api/v1/builds/{build}/files), then name it here. A file that can’t be imported as it is says so in `problem`.',
+    access: 'session-or-rig',
+    params: build,
+    query: CsvPreviewQuery,
+    ok: { 200: { description: 'OK', schema: CsvPreviewOut } },
+    errors: [400, 401, 403, 404],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/import',
+    tag: 'Revisions and readings',
+    summary: 'Import readings from an uploaded CSV file: all rows or none (Engineer or Owner)',
+    description: 'The rows are grouped into one reading per revision, target and unit. Any bad row refuses the whole file: 422 with `data.problems` (line and message, the first few) and `data.problemCount`.',
+    access: 'session-or-rig',
+    params: build,
+    body: CsvImportBody,
+    bodyName: 'CsvImport',
+    ok: { 201: { description: 'Created', schema: CsvImportedOut } },
+    errors: [
+      400, 401, 403, 404,
+      [409, 'The file was imported already, or a revision named is frozen'],
+      [422, 'The file is not text or too large, or rows can’t be read (`data.problems`); nothing is kept'],
+    ],
+  },
+  // ---- findings ----
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/findings/board',
+    tag: 'Findings',
+    summary: 'The board: every card with what it shows and filters on, the team’s members, the targets and the revisions',
+    access: 'session-or-rig',
+    params: build,
+    ok: { 200: { description: 'OK', schema: BoardOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/findings/open',
+    tag: 'Findings',
+    summary: 'Per target key, the open findings that hurt it',
+    access: 'session-or-rig',
+    params: build,
+    ok: { 200: { description: 'OK', schema: OpenFindingsOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/findings/{id}',
+    tag: 'Findings',
+    summary: 'One finding with its description, fixes, comments, history and what would let it close',
+    access: 'session-or-rig',
+    params: findingId,
+    ok: { 200: { description: 'OK', schema: FindingDetailOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'patch',
+    path: '/api/v1/findings/{id}',
+    tag: 'Findings',
+    summary: 'Edit a finding’s title, description, severity, revision seen on or the targets it hurts (Engineer or Owner)',
+    description: 'Send the `version` you hold. Moving it between lanes is POST /api/v1/findings/{id}/move. 404 names a revision or target that is not in the build.',
+    access: 'session-or-rig',
+    params: findingId,
+    body: FindingPatch,
+    bodyName: 'FindingUpdate',
+    ok: { 200: { description: 'OK', schema: FindingOut } },
+    errors: [400, 401, 403, 404, [409, 'The version is stale (`data.current` holds the finding as it is now)']],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/findings/{id}/fixes',
+    tag: 'Findings',
+    summary: 'Add a fix to a finding (Engineer or Owner)' + noRig,
+    description: 'A landed fix names the revision it landed in. 404 for a revision not in the build; 422 for an owner who is not a member of the team.',
+    access: 'session',
+    params: findingId,
+    body: FixBody,
+    bodyName: 'Fix',
+    ok: { 201: { description: 'Created', schema: FixOut } },
+    errors: [400, 401, 403, 404, [422, 'The owner is not a member of the build’s team']],
+  },
+  {
+    method: 'patch',
+    path: '/api/v1/findings/{id}/fixes/{fixId}',
+    tag: 'Findings',
+    summary: 'Edit a fix: its state, owner, due date or the revision it landed in (Engineer or Owner)' + noRig,
+    access: 'session',
+    params: { ...findingId, fixId: 'the fix’s id' },
+    body: FixPatch,
+    bodyName: 'FixUpdate',
+    ok: { 200: { description: 'OK', schema: FixOut } },
+    errors: [400, 401, 403, 404, [422, 'The owner is not a member of the build’s team']],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/findings/{id}/comments',
+    tag: 'Findings',
+    summary: 'Comment on a finding (Reviewers too); the members it names with @ get an e-mail' + noRig,
+    access: 'session',
+    params: findingId,
+    body: CommentBody,
+    bodyName: 'Comment',
+    ok: { 201: { description: 'Created', schema: CommentOut } },
+    errors: [400, 401, 403, 404],
+  },
+  // ---- files ----
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/files',
+    tag: 'Files',
+    summary: 'The build’s evidence files, newest first, a page at a time',
+    access: 'session-or-rig',
+    params: build,
+    query: FileListQuery,
+    ok: { 200: { description: 'OK', schema: FileListOut } },
+    errors: [400, 401, 404],
+  },
+  {
+    method: 'delete',
+    path: '/api/v1/files/{id}',
+    tag: 'Files',
+    summary: 'Delete a file: its uploader or an Owner; evidence of a signed-off revision only an Owner' + noRig,
+    access: 'session',
+    params: { id: 'the file’s id' },
+    description: 'The record goes at once; its bytes are removed from the store right after (or by the next sweep when the store can’t be reached).',
+    ok: { 204: { description: 'Deleted' } },
+    errors: [401, 403, 404],
+  },
+  // ---- reviewers ----
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/subscription',
+    tag: 'Reviewers',
+    summary: 'The caller’s own digest subscription to the build' + noRig,
+    access: 'session',
+    params: build,
+    ok: { 200: { description: 'OK (frequency `off` when there is none)', schema: SubscriptionOut } },
+    errors: [401, 403, 404],
   },
   {
     method: 'get',
