@@ -3,18 +3,8 @@ import { dirname } from 'node:path'
 
 // Ratchet: the repository root is Nuxt's source folder (pages/, components/, server/ … at the top).
 export default defineNuxtConfig({
-  compatibilityDate: '2026-11-01',
-  srcDir: '.',
-  dir: { app: 'app' },
-  telemetry: false,
-  devtools: { enabled: false },
   modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils', '@vueuse/nuxt', '@nuxt/eslint'],
-  tailwindcss: {
-    cssPath: '~/assets/css/main.css',
-    configPath: '~~/tailwind.config.ts',
-    exposeConfig: false,
-    viewer: false,
-  },
+  devtools: { enabled: false },
   app: {
     head: {
       htmlAttrs: { lang: 'en' },
@@ -59,6 +49,9 @@ export default defineNuxtConfig({
       s3: { endpoint: '', bucket: '', region: 'us-east-1', accessKeyId: '', secretAccessKey: '' },
     },
   },
+  dir: { app: 'app' },
+  srcDir: '.',
+  compatibilityDate: '2026-11-01',
   nitro: {
     experimental: { tasks: false },
     // the API reference page's script and style, served by server/api/v1/docs/[file].get.ts
@@ -90,7 +83,14 @@ export default defineNuxtConfig({
   typescript: {
     strict: true,
   },
+  telemetry: false,
   eslint: {
-    config: { stylistic: false },
+    config: { stylistic: true },
+  },
+  tailwindcss: {
+    cssPath: '~/assets/css/main.css',
+    configPath: '~~/tailwind.config.ts',
+    exposeConfig: false,
+    viewer: false,
   },
 })

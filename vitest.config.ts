@@ -8,6 +8,20 @@ const shared = fileURLToPath(new URL('./shared', import.meta.url))
 // Setting up the `nuxt` project loads Nuxt (seconds): skip it when the run asks only for others.
 const asked = process.argv.flatMap((a, i, all) => (a === '--project' ? [all[i + 1] ?? ''] : a.startsWith('--project=') ? [a.slice(10)] : []))
 const wantsNuxt = !asked.length || asked.some(name => name === 'nuxt' || name.includes('*'))
+const nuxtProject = wantsNuxt
+  ? [await defineVitestProject({
+      test: {
+        name: 'nuxt',
+        include: ['tests/nuxt/**/*.test.ts'],
+        environment: 'nuxt',
+        environmentOptions: { nuxt: { domEnvironment: 'happy-dom' } },
+        // the first file of a run sets up the Nuxt app (a few seconds on a busy machine)
+        hookTimeout: 60_000,
+        testTimeout: 30_000,
+        sequence: { groupOrder: 0 },
+      },
+    })]
+  : []
 
 // Four projects: pure modules (no services), components mounted in a Nuxt app in happy-dom (no
 // services either), the HTTP API against the built server, and the browser suite driving
@@ -24,18 +38,7 @@ export default defineConfig({
           sequence: { groupOrder: 0 },
         },
       },
-      ...(wantsNuxt ? [await defineVitestProject({
-        test: {
-          name: 'nuxt',
-          include: ['tests/nuxt/**/*.test.ts'],
-          environment: 'nuxt',
-          environmentOptions: { nuxt: { domEnvironment: 'happy-dom' } },
-          // the first file of a run sets up the Nuxt app (a few seconds on a busy machine)
-          hookTimeout: 60_000,
-          testTimeout: 30_000,
-          sequence: { groupOrder: 0 },
-        },
-      })] : []),
+      ...nuxtProject,
       {
         test: {
           name: 'api',

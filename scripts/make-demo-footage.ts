@@ -133,9 +133,21 @@ function sizeBytes(n: number): Buffer {
 }
 
 const element = (id: number, data: Buffer) => Buffer.concat([idBytes(id), sizeBytes(data.length), data])
-const uint8 = (n: number) => { const b = Buffer.alloc(8); b.writeBigUInt64BE(BigInt(n)); return b }
-const float64 = (x: number) => { const b = Buffer.alloc(8); b.writeDoubleBE(x); return b }
-const readUint = (buf: Buffer, el: El) => { let v = 0; for (let i = el.dataStart; i < el.end; i++) v = v * 256 + buf[i]!; return v }
+const uint8 = (n: number) => {
+  const b = Buffer.alloc(8)
+  b.writeBigUInt64BE(BigInt(n))
+  return b
+}
+const float64 = (x: number) => {
+  const b = Buffer.alloc(8)
+  b.writeDoubleBE(x)
+  return b
+}
+const readUint = (buf: Buffer, el: El) => {
+  let v = 0
+  for (let i = el.dataStart; i < el.end; i++) v = v * 256 + buf[i]!
+  return v
+}
 
 function makeSeekable(raw: Buffer): Buffer {
   const top = children(raw, 0, raw.length)
@@ -188,7 +200,11 @@ function makeSeekable(raw: Buffer): Buffer {
   const cued = clusters.map((c, i) => ({ c, i })).filter(x => x.c.keyStart || x.i === 0)
   const cuesSize = element(ID.Cues, Buffer.concat(cued.map(() => cueFor(0, 0)))).length
   let position = newInfo.length + kept.reduce((s, b) => s + b.length, 0) + cuesSize
-  const positions = wrapped.map((w) => { const p = position; position += w.length; return p })
+  const positions = wrapped.map((w) => {
+    const p = position
+    position += w.length
+    return p
+  })
   const cues = element(ID.Cues, Buffer.concat(cued.map(x => cueFor(x.c.time, positions[x.i]!))))
   const body = Buffer.concat([newInfo, ...kept, cues, ...wrapped])
   return Buffer.concat([raw.subarray(header.start, header.end), element(ID.Segment, body)])

@@ -3,11 +3,11 @@
 export type CardStep = 'up' | 'down' | 'top' | 'bottom'
 export type FocusDirection = 'up' | 'down' | 'left' | 'right'
 
-export type CardKeyAction =
-  | { kind: 'step', step: CardStep }
-  | { kind: 'lane', dir: -1 | 1 }
-  | { kind: 'focus', dir: FocusDirection }
-  | { kind: 'menu' }
+export type CardKeyAction
+  = | { kind: 'step', step: CardStep }
+    | { kind: 'lane', dir: -1 | 1 }
+    | { kind: 'focus', dir: FocusDirection }
+    | { kind: 'menu' }
 
 const ARROWS: Record<string, FocusDirection> = { ArrowUp: 'up', ArrowDown: 'down', ArrowLeft: 'left', ArrowRight: 'right' }
 

@@ -69,4 +69,3 @@ export async function sendStoredFile(event: H3Event, file: FileRow) {
   // a client that goes away mid-download ends the pipeline; nothing to report
   await pipeline(body, res).catch(() => {})
 }
-

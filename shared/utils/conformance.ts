@@ -44,7 +44,7 @@ function bandOf(target: TargetRule): [number, number] {
  * For `between` the good side is the band [threshold, thresholdHigh].
  */
 export function statusOf(
-  stats: { mean: number; ci95: [number, number] | null } | null,
+  stats: { mean: number, ci95: [number, number] | null } | null,
   target: TargetRule,
 ): TargetStatus {
   const [low, high] = bandOf(target)
@@ -69,19 +69,24 @@ export function marginOf(mean: number, target: TargetRule): number | null {
   if (target.comparator === 'atLeast') {
     edge = low
     signed = mean - low
-  } else if (target.comparator === 'atMost') {
+  }
+  else if (target.comparator === 'atMost') {
     edge = high
     signed = high - mean
-  } else if (mean < low) {
+  }
+  else if (mean < low) {
     edge = low
     signed = mean - low
-  } else if (mean > high) {
+  }
+  else if (mean > high) {
     edge = high
     signed = high - mean
-  } else if (mean - low <= high - mean) {
+  }
+  else if (mean - low <= high - mean) {
     edge = low
     signed = mean - low
-  } else {
+  }
+  else {
     edge = high
     signed = high - mean
   }
@@ -119,7 +124,7 @@ export function movementOf(
   before: MovementSide,
   now: MovementSide,
   target: MovementTarget,
-  opts: { derived?: boolean; uBefore?: number | null; uNow?: number | null } = {},
+  opts: { derived?: boolean, uBefore?: number | null, uNow?: number | null } = {},
 ): MovementResult {
   const [low, high] = bandOf(target)
   if (!Number.isFinite(before.mean) || !Number.isFinite(now.mean)) {
@@ -143,17 +148,20 @@ export function movementOf(
   if (opts.derived && hasU(u1) && hasU(u2)) {
     real = size > 2 * Math.sqrt(u1 * u1 + u2 * u2)
     reason = 'uncertainty'
-  } else if (!opts.derived && sampled(before) && sampled(now)) {
+  }
+  else if (!opts.derived && sampled(before) && sampled(now)) {
     p = welchTest(
       { n: now.n!, mean: now.mean, sd: now.sd! },
       { n: before.n!, mean: before.mean, sd: before.sd! },
     ).p
     real = p < SIGNIFICANCE
     reason = 'welch'
-  } else if (band > 0) {
+  }
+  else if (band > 0) {
     real = size > band
     reason = 'noise-band'
-  } else {
+  }
+  else {
     real = false
     reason = 'not-enough-data'
   }

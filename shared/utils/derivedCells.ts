@@ -48,9 +48,9 @@ export interface UncertaintyTerm {
   contribution: number | null
 }
 
-export type DerivedPoint =
-  | { kind: 'value', cell: CellStats, decision: CellDecision, inputs: Record<string, InputCell>, budget: UncertaintyTerm[] }
-  | { kind: 'cant-evaluate', reason: string }
+export type DerivedPoint
+  = | { kind: 'value', cell: CellStats, decision: CellDecision, inputs: Record<string, InputCell>, budget: UncertaintyTerm[] }
+    | { kind: 'cant-evaluate', reason: string }
 
 /** null: no input has a reading on that revision (the derived target is untested there). */
 export type DerivedSeries = (DerivedPoint | null)[]

@@ -55,7 +55,6 @@ function mean(values: readonly number[]): number {
   return first + correction / values.length
 }
 
-
 export interface ForecastPoint {
   /** Position of the revision in the build's order (R1 → 0 or 1, …); any increasing scale. */
   index: number
@@ -82,7 +81,7 @@ export interface Forecast {
   crossesAfterLast: number | null
   status: ForecastStatus
   /** Fitted values at the used points, then one point at the crossing or 3 revisions ahead. */
-  line: { index: number; value: number }[]
+  line: { index: number, value: number }[]
 }
 
 export const FORECAST_MIN_POINTS = 3
@@ -150,7 +149,7 @@ export function forecast(
   return result('converging', Math.max(crossing, lastIndex))
 }
 
-function band(target: ForecastTarget): { low: number; high: number } {
+function band(target: ForecastTarget): { low: number, high: number } {
   const { comparator, threshold, thresholdHigh } = target
   if (!Number.isFinite(threshold)) throw new RangeError('forecast: the threshold must be a finite number')
   if (comparator === 'atLeast') return { low: threshold, high: Infinity }

@@ -65,7 +65,7 @@ export function tQuantile(p: number, nu: number): number {
  * infinite ν contribute nothing to the denominator; if all do (or all uᵢ with finite ν are 0),
  * ν_eff is Infinity.
  */
-export function welchSatterthwaite(components: readonly { u: number; nu: number }[]): number {
+export function welchSatterthwaite(components: readonly { u: number, nu: number }[]): number {
   let scale = 0
   for (const { u, nu } of components) {
     if (!(u >= 0) || !(nu > 0)) throw new RangeError('welchSatterthwaite: u must be ≥ 0 and ν > 0')
@@ -107,7 +107,7 @@ function checkResolution(resolution: number | null | undefined): number {
  * estimate corrected by the mean residual, and the squared deviations carry the same
  * correction (the "corrected two-pass" algorithm), so a large common offset costs no digits.
  */
-function meanAndSS(values: readonly number[]): { mean: number; ss: number } {
+function meanAndSS(values: readonly number[]): { mean: number, ss: number } {
   const n = values.length
   const shift = values[0]!
   let sum = 0
@@ -168,7 +168,7 @@ export interface SampleSummary {
  * standard deviations are 0 the test degenerates: equal means give t = 0, p = 1, otherwise
  * t = ±Infinity, p = 0; df is then n_a + n_b − 2.
  */
-export function welchTest(a: SampleSummary, b: SampleSummary): { t: number; df: number; p: number } {
+export function welchTest(a: SampleSummary, b: SampleSummary): { t: number, df: number, p: number } {
   for (const [name, s] of [['first', a], ['second', b]] as const) {
     if (!Number.isInteger(s.n) || s.n < 2) throw new RangeError(`welchTest: the ${name} sample needs n ≥ 2`)
     if (!Number.isFinite(s.mean) || !Number.isFinite(s.sd) || s.sd < 0) {
@@ -195,7 +195,7 @@ export function welchTest(a: SampleSummary, b: SampleSummary): { t: number; df: 
  * readings (the coarsest instrument bounds them all); readings without one add none.
  * Values must already be in one unit.
  */
-export function pooledStats(readings: readonly { values: readonly number[]; resolution?: number | null }[]): ReadingStats {
+export function pooledStats(readings: readonly { values: readonly number[], resolution?: number | null }[]): ReadingStats {
   if (readings.length === 0) throw new RangeError('pooledStats: no readings to pool')
   const values: number[] = []
   let resolution = 0

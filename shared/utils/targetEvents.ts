@@ -12,9 +12,9 @@ export interface TargetState {
 
 export type SlipReason = 'status' | 'movement'
 
-export type TargetTransition =
-  | { type: 'target.met' }
-  | { type: 'target.slipped', reasons: SlipReason[] }
+export type TargetTransition
+  = | { type: 'target.met' }
+    | { type: 'target.slipped', reasons: SlipReason[] }
 
 /**
  * The event a change from `before` to `after` makes, if any:

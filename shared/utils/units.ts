@@ -6,10 +6,10 @@
 
 import { all, create } from 'mathjs'
 
-export type Quantity =
-  | 'velocity' | 'mass' | 'force' | 'torque' | 'current' | 'voltage' | 'power' | 'energy'
-  | 'charge' | 'angularSpeed' | 'length' | 'time' | 'angle' | 'frequency' | 'temperature'
-  | 'pressure' | 'acceleration' | 'dimensionless'
+export type Quantity
+  = | 'velocity' | 'mass' | 'force' | 'torque' | 'current' | 'voltage' | 'power' | 'energy'
+    | 'charge' | 'angularSpeed' | 'length' | 'time' | 'angle' | 'frequency' | 'temperature'
+    | 'pressure' | 'acceleration' | 'dimensionless'
 
 export const QUANTITY_LABELS: Record<Quantity, string> = {
   velocity: 'velocity',
@@ -279,7 +279,7 @@ function withArticle(label: string): string {
 }
 
 /** Both units parsed; throws UnitError 'dimension' when they measure different quantities. */
-export function assertSameQuantity(entered: string, target: string): { entered: UnitInfo; target: UnitInfo } {
+export function assertSameQuantity(entered: string, target: string): { entered: UnitInfo, target: UnitInfo } {
   const e = parseUnit(entered)
   const t = parseUnit(target)
   if (e.quantity !== t.quantity) {

@@ -19,7 +19,7 @@ describe('sign up', () => {
     const me = await c.get('/api/account')
     expect(me.status).toBe(200)
     expect(me.body.teams).toHaveLength(1)
-    expect(me.body.teams[0]).toMatchObject({ personal: true, role: 'owner', name: "Ada Bench's team" })
+    expect(me.body.teams[0]).toMatchObject({ personal: true, role: 'owner', name: 'Ada Bench\'s team' })
   })
 
   it('compares e-mail addresses case-insensitively', async () => {

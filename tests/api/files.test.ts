@@ -11,6 +11,12 @@ import { FILES_DIR, PNG_1x1, byteSource, storedFiles, streamDownload, streamUplo
 import { addReading, newRevision, newTarget } from '../support/measure'
 import { listeningPid, rssOf, watchRss } from '../support/proc'
 
+function formOf(fill: (f: FormData) => void): FormData {
+  const f = new FormData()
+  fill(f)
+  return f
+}
+
 // scripts/test.sh starts the server with NUXT_FILES_MAX_BYTES=60000000 and a team quota of 1 GB,
 // so the limits can be tested without sending hundreds of megabytes.
 const MAX_BYTES = Number(process.env.NUXT_FILES_MAX_BYTES ?? 60_000_000)
@@ -230,8 +236,8 @@ describe('evidence files', () => {
         // a JSON body on the upload route is the wrong media type: 415
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, { file: 'not multipart' }),
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, uploadForm('empty.txt', '')),
-        await w.engineer.client.post(`/api/v1/builds/${b()}/files`, (() => { const f = new FormData(); f.append('revision', 'R1'); return f })()),
-        await w.engineer.client.post(`/api/v1/builds/${b()}/files`, (() => { const f = new FormData(); f.append('photo', new Blob(['x']), 'x.txt'); return f })()),
+        await w.engineer.client.post(`/api/v1/builds/${b()}/files`, formOf(f => f.append('revision', 'R1'))),
+        await w.engineer.client.post(`/api/v1/builds/${b()}/files`, formOf(f => f.append('photo', new Blob(['x']), 'x.txt'))),
         await w.engineer.client.post(`/api/v1/builds/${b()}/files`, uploadForm('a.txt', 'x', { reading: 'not-an-id' })),
       ]
       expect(cases.map(r => r.status)).toEqual([415, 400, 400, 400, 400])

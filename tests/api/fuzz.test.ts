@@ -51,7 +51,7 @@ const hostileValue: fc.Arbitrary<unknown> = fc.oneof(
 /** JSON text no JSON.stringify makes: non-finite numbers, deep nesting, broken syntax, prototype keys */
 const RAW_BODIES = [
   '{"values":[NaN]}', '{"values":[1e999]}', '{"version":-1e999}', '{"name":Infinity}', '{', '{"a":1,}', '\u0000',
-  '[' .repeat(10_000) + ']'.repeat(10_000),
+  '['.repeat(10_000) + ']'.repeat(10_000),
   '{"a":'.repeat(5_000) + '1' + '}'.repeat(5_000),
   '{"__proto__":{"role":"owner"},"constructor":{"prototype":{"admin":true}}}',
   '"just a string"', '12', 'null', '[]', '{"name":"\\ud800"}', '{"name":"a\\u0000b"}', '{"\\u0000":1}',

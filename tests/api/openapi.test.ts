@@ -23,7 +23,10 @@ function handlerFiles(): Map<string, string> {
   const walk = (dir: string) => {
     for (const name of readdirSync(dir)) {
       const full = join(dir, name)
-      if (statSync(full).isDirectory()) { walk(full); continue }
+      if (statSync(full).isDirectory()) {
+        walk(full)
+        continue
+      }
       const m = name.match(/^(.*)\.(get|post|patch|put|delete)\.ts$/)
       if (!m) continue
       const segments = relative(apiDir, dir).split('/').filter(Boolean)
@@ -106,7 +109,10 @@ function disagreements(doc: Doc, route: ApiRoute): string[] {
   for (const name of names) {
     const p = query.find(q => q.name === name)
     const want = wantQuery.properties[name]
-    if (!p || !want) { out.push(`query parameter ${name}: only in the ${p ? 'document' : 'schema'}`); continue }
+    if (!p || !want) {
+      out.push(`query parameter ${name}: only in the ${p ? 'document' : 'schema'}`)
+      continue
+    }
     const { description, ...schema } = want
     try {
       expect({ ...p.schema, ...(p.description === undefined ? {} : { description: p.description }) }).toEqual({ ...schema, ...(description === undefined ? {} : { description }) })
@@ -156,7 +162,10 @@ describe('GET /api/v1/openapi.json', () => {
     const problems: string[] = []
     for (const route of apiRoutes) {
       const file = files.get(key(route))
-      if (!file) { problems.push(`${key(route)}: no handler file`); continue }
+      if (!file) {
+        problems.push(`${key(route)}: no handler file`)
+        continue
+      }
       const used = validatedWith(readFileSync(join(ROOT, file), 'utf8'))
       for (const part of ['body', 'query'] as const) {
         const names = used[part]
@@ -199,7 +208,10 @@ describe('GET /api/v1/openapi.json', () => {
       const source = readFileSync(join(ROOT, files.get(key(route))!), 'utf8')
       const refuses = /\brefuseRigToken\(event\)/.test(source)
       const allows = /allowRigToken: true|\buseRigToken\(/.test(source)
-      if (refuses === allows) { problems.push(`${key(route)}: the handler neither lets a rig token in nor refuses it plainly`); continue }
+      if (refuses === allows) {
+        problems.push(`${key(route)}: the handler neither lets a rig token in nor refuses it plainly`)
+        continue
+      }
       const documented = route.access === 'session-or-rig'
       if (documented !== allows) problems.push(`${key(route)}: documented as ${route.access}, but the handler ${allows ? 'lets a rig token in' : 'refuses a rig token'}`)
     }

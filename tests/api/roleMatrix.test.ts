@@ -12,7 +12,10 @@ function serverRoutes(): string[] {
   const walk = (dir: string) => {
     for (const name of readdirSync(dir)) {
       const full = join(dir, name)
-      if (statSync(full).isDirectory()) { walk(full); continue }
+      if (statSync(full).isDirectory()) {
+        walk(full)
+        continue
+      }
       const m = name.match(/^(.*)\.(get|post|patch|put|delete)\.ts$/)
       if (!m) continue
       const segments = relative(apiDir, dir).split('/').filter(Boolean)

@@ -17,7 +17,7 @@ describe('the API reference at /api/v1/docs', () => {
 
     const res = await page.goto('/api/v1/docs', { waitUntil: 'networkidle' })
     expect(res?.status()).toBe(200)
-    expect(res?.headers()['content-security-policy']).toContain("script-src 'self'")
+    expect(res?.headers()['content-security-policy']).toContain('script-src \'self\'')
     await page.locator('.opblock').first().waitFor()
 
     // the routes in their groups, one block per documented operation, titled with its path

@@ -170,7 +170,10 @@ describe('the findings board in Chromium', () => {
     await signIn(context, w.reviewer)
     const page = await context.newPage()
     const dialogs: string[] = []
-    page.on('dialog', (d) => { dialogs.push(d.message()); void d.dismiss() })
+    page.on('dialog', (d) => {
+      dialogs.push(d.message())
+      void d.dismiss()
+    })
 
     await goto(page, `/builds/${w.build.slug}?tab=findings`)
     await expect(card(page, ids.xss!).locator('[data-testid="card-title"]').innerText()).resolves.toBe(`${PAYLOAD} Hostile title`)

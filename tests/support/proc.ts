@@ -16,7 +16,12 @@ export function watchRss(pid: number, ms = 20) {
     try { peak = Math.max(peak, rssOf(pid)) }
     catch { /* the process is gone */ }
   }, ms)
-  return { stop: () => { clearInterval(timer); return peak } }
+  return {
+    stop: () => {
+      clearInterval(timer)
+      return peak
+    },
+  }
 }
 
 /**

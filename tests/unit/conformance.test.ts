@@ -44,7 +44,7 @@ describe('statusOf', () => {
 
     ['no reading', null, atLeast40, 'untested'],
   ] as const)('%s → %s', (_case, stats, target, status) => {
-    expect(statusOf(stats as { mean: number; ci95: [number, number] | null } | null, target)).toBe(status)
+    expect(statusOf(stats as { mean: number, ci95: [number, number] | null } | null, target)).toBe(status)
   })
 
   it('n = 1 without resolution: the mean alone decides', () => {

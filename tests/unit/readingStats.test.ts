@@ -246,7 +246,7 @@ describe('edge cases of docs/computation.md §Statistics of a reading', () => {
     expect(s.nuEff).toBe(Infinity)
   })
 
-  it.each([0, null, undefined])('resolution %s means none: ν = n − 1', resolution => {
+  it.each([0, null, undefined])('resolution %s means none: ν = n − 1', (resolution) => {
     const s = computeStats([1, 2, 3, 4, 5], resolution)
     expect(s.uB).toBeNull()
     expect(s.nuEff).toBe(4)
@@ -264,7 +264,7 @@ describe('edge cases of docs/computation.md §Statistics of a reading', () => {
     expect(() => computeStats(values)).toThrow(RangeError)
   })
 
-  it.each([-0.1, Number.NaN, Infinity])('refuses resolution %s', resolution => {
+  it.each([-0.1, Number.NaN, Infinity])('refuses resolution %s', (resolution) => {
     expect(() => computeStats([1, 2], resolution)).toThrow(RangeError)
   })
 

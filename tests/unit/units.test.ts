@@ -139,12 +139,13 @@ describe('spellings', () => {
   // Ambiguous or wrong-by-convention spellings are refused rather than guessed (common
   // practice, no source): fps (feet or frames per second), kg·cm (a mass times a length),
   // G (gauss, giga- or gravity), MA/MV (mega-, not milli-), C for a temperature (coulomb).
-  it.each(['fps', 'kg·cm', 'G', 'MA', 'xyz', 'ft·lb', 'deg C'])('"%s" is refused as unknown', text => {
+  it.each(['fps', 'kg·cm', 'G', 'MA', 'xyz', 'ft·lb', 'deg C'])('"%s" is refused as unknown', (text) => {
     expect(() => parseUnit(text)).toThrow(UnitError)
     expect(() => parseUnit(text)).toThrow(`Unknown unit "${text}"`)
     try {
       parseUnit(text)
-    } catch (e) {
+    }
+    catch (e) {
       expect((e as UnitError).code).toBe('unknown')
     }
   })
@@ -206,7 +207,8 @@ describe('quantities', () => {
     expect(() => assertSameQuantity(entered, target)).toThrow(message)
     try {
       assertSameQuantity(entered, target)
-    } catch (e) {
+    }
+    catch (e) {
       expect(e).toBeInstanceOf(UnitError)
       expect((e as UnitError).code).toBe('dimension')
     }
@@ -227,14 +229,14 @@ describe('quantities', () => {
 describe('round trips and mathjs', () => {
   const values = [-273.15, -40, 0, 0.001, 1, 37.5, 1234.5678]
 
-  it.each(listUnits().map(u => [u.unit]))('%s: fromSI(toSI(x)) = x and diffFromSI(diffToSI(d)) = d', unit => {
+  it.each(listUnits().map(u => [u.unit]))('%s: fromSI(toSI(x)) = x and diffFromSI(diffToSI(d)) = d', (unit) => {
     for (const x of values) {
       expect(fromSI(toSI(x, unit), unit)).toBeCloseTo(x, 9)
       expect(diffFromSI(diffToSI(x, unit), unit)).toBeCloseTo(x, 9)
     }
   })
 
-  it.each(listUnits().map(u => [u.unit]))('%s: the mathjs spelling parses and means the same unit', unit => {
+  it.each(listUnits().map(u => [u.unit]))('%s: the mathjs spelling parses and means the same unit', (unit) => {
     const info = parseUnit(unit)
     const spelling = unitForMath(unit)
     expect(math.unit(7, spelling).toSI().toNumber()).toBeCloseTo(toSI(7, unit), 9)

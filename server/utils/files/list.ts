@@ -99,7 +99,6 @@ export async function storageUsage(db: Db, team: { id: string, slug: string, nam
   }
 }
 
-
 /**
  * DELETE /api/files/:id (the handler checked that the caller may): the row goes, then the bytes.
  */

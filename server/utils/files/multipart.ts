@@ -75,4 +75,3 @@ export function readMultipart(req: IncomingMessage, headers: IncomingHttpHeaders
     req.pipe(parser)
   })
 }
-

@@ -266,4 +266,3 @@ export async function storeBytes(trx: Knex.Transaction, store: FileStore, file: 
     throw err
   }
 }
-

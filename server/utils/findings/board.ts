@@ -13,7 +13,6 @@ import { seriesOf } from '../measure/history'
 // list and one finding's summary), and what the lane rules read of a build. Plain Knex with the
 // connection passed in (the seed uses it too).
 
-
 // timestamps as ISO 8601 text in UTC straight from the database (a board reads thousands)
 const isoOf = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`
 const ISO_TIMES = `${isoOf('f.created_at')} AS created_at, ${isoOf('f.updated_at')} AS updated_at`
@@ -220,7 +219,6 @@ export async function findingSummary(db: Db, id: string): Promise<FindingSummary
   if (!rows[0]) throw createError({ statusCode: 404, message: 'Finding not found' })
   return summaryOfRow(rows[0])
 }
-
 
 /** API v1's list: the build's findings by lane, safety first, then by rank. */
 export async function listFindings(db: Db, buildId: string, o: ListOptions = {}): Promise<FindingSummary[]> {

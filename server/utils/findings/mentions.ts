@@ -38,7 +38,16 @@ async function sendBatch(): Promise<number> {
     .orderBy('n.created_at')
     .limit(BATCH)
     .select('n.comment_id', 'n.user_id', 'u.email', 'c.body', 'a.name as author_name', 'f.id as finding_id', 'f.title', 'b.id as build_id', 'b.name as build_name', 'b.slug') as {
-    comment_id: string, user_id: string, email: string, body: string, author_name: string | null, finding_id: string, title: string, build_id: string, build_name: string, slug: string
+    comment_id: string
+    user_id: string
+    email: string
+    body: string
+    author_name: string | null
+    finding_id: string
+    title: string
+    build_id: string
+    build_name: string
+    slug: string
   }[]
   for (const n of pending) {
     // at most once per person and comment, even with several app servers at it

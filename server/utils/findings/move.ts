@@ -59,7 +59,6 @@ async function writeIfCurrent(db: Db, id: string, version: number, sets: Record<
   return rows[0] ? summaryOfRow(rows[0]) : null
 }
 
-
 /** What the lane rules look at for one finding, in one statement; `revisionIds` maps a revision's seq to its id. */
 export async function laneFactsOf(db: Db, f: FindingRow): Promise<{ landedFixes: number, verification: Verification, revisionIds: Map<number, string> }> {
   const [row] = await prepared<{ seen: { seq: number, label: string } | null, targets: { id: string, key: string, derived: boolean }[], fixes: Pick<FixJoinedRow, 'state' | 'landed_seq' | 'landed_label'>[], revisions: RevisionCells }>(db, `

@@ -235,7 +235,15 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
       const found = await db('readings as rd').join('targets as t', 't.id', 'rd.target_id').join('revisions as rv', 'rv.id', 'rd.revision_id')
         .whereIn('rd.id', batch)
         .select('rd.id', 't.key', 't.quantity', 'rv.label', 'rd.values_entered', 'rd.values_si', 'rd.unit_entered', 'rd.taken_at', 'rd.method') as {
-        id: string, key: string, quantity: Quantity, label: string, values_entered: number[], values_si: number[], unit_entered: string, taken_at: Date, method: string
+        id: string
+        key: string
+        quantity: Quantity
+        label: string
+        values_entered: number[]
+        values_si: number[]
+        unit_entered: string
+        taken_at: Date
+        method: string
       }[]
       const byId = new Map(found.map(r => [r.id, r]))
       const lines: unknown[][] = []

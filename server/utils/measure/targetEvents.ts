@@ -13,7 +13,6 @@ import { seriesOf } from './history'
 // their inputs' cells, so a reading of an input can make a derived target Met or make it slip,
 // like a reading of its own would.
 
-
 /** The derived targets of the build that use `key`, directly or through another derived target. */
 function dependentsOf(targets: readonly TargetRow[], key: string): TargetRow[] {
   const derived = targets.filter(t => t.formula !== null && !t.archived_at)

@@ -32,5 +32,4 @@ describe('matchesFilter', () => {
   ] as const)('%s → %s', (_, filter, passes) => {
     expect(matchesFilter(card, filter)).toBe(passes)
   })
-
 })

@@ -21,7 +21,7 @@ export default defineEventHandler((event) => {
   setResponseHeaders(event, {
     'Content-Type': 'text/html; charset=utf-8',
     // the page needs nothing from another host; the UI sets style attributes and shows data: images
-    'Content-Security-Policy': "default-src 'self'; script-src 'self'; style-src 'self' 'unsafe-inline'; img-src 'self' data:; connect-src 'self'; object-src 'none'; base-uri 'none'; frame-ancestors 'none'",
+    'Content-Security-Policy': 'default-src \'self\'; script-src \'self\'; style-src \'self\' \'unsafe-inline\'; img-src \'self\' data:; connect-src \'self\'; object-src \'none\'; base-uri \'none\'; frame-ancestors \'none\'',
   })
   return PAGE
 })
