@@ -1,5 +1,6 @@
 import { createRequire } from 'node:module'
-import { dirname } from 'node:path'
+import { dirname, join } from 'node:path'
+import { build as esbuild } from 'esbuild'
 
 // Ratchet: the repository root is Nuxt's source folder (pages/, components/, server/ … at the top).
 export default defineNuxtConfig({
@@ -62,6 +63,22 @@ export default defineNuxtConfig({
     }],
     // read as files into the bundle, not left as a package to import at run time
     externals: { inline: ['swagger-ui-dist'] },
+    hooks: {
+      // the CSV worker thread's script (server/workers/csv.ts), a file of its own beside the
+      // server bundle (.output/server/workers/csv.mjs) with everything it imports inlined
+      async compiled(nitro) {
+        if (nitro.options.dev) return
+        await esbuild({
+          entryPoints: [join(nitro.options.rootDir, 'server/workers/csv.ts')],
+          outfile: join(nitro.options.output.serverDir, 'workers/csv.mjs'),
+          bundle: true,
+          platform: 'node',
+          target: 'node20',
+          format: 'esm',
+          logLevel: 'warning',
+        })
+      },
+    },
   },
   vite: {
     plugins: [{

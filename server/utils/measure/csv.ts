@@ -1,11 +1,15 @@
+import { existsSync } from 'node:fs'
+import { dirname, join } from 'node:path'
 import { Readable } from 'node:stream'
-import { createError } from 'h3'
+import { fileURLToPath } from 'node:url'
+import { Worker } from 'node:worker_threads'
+import { createError, setResponseHeader, type H3Event } from 'h3'
 import type { Knex } from 'knex'
 import Papa from 'papaparse'
 import type { z } from 'zod'
 import type { CsvImported, CsvPreview } from '../../../shared/types/files'
 import { kindOf } from '../../../shared/utils/contentTypes'
-import { parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvProblem, type CsvRow } from '../../../shared/utils/csvReadings'
+import { problemsMessage } from '../../../shared/utils/csvReadings'
 import { formatBytes } from '../../../shared/utils/fileNames'
 import type { CsvImportBody } from '../../../shared/utils/fileSchemas'
 import { SI_UNIT, diffFromSI, diffToSI, type Quantity } from '../../../shared/utils/units'
@@ -13,29 +17,21 @@ import type { BuildRow, FileRow } from '../../db/tables'
 import { recordAudit, type Actor } from '../audit'
 import type { Db } from '../db'
 import { insertReading } from './readings'
+import { runCsvJob, type CsvJob, type CsvPlanned, type CsvPreviewParsed } from './csvParse'
 import { buildScoreboard } from './scoreboard'
 import { findTarget } from './targets'
 
 // CSV in and out: readings imported from an instrument's CSV (an uploaded evidence file) in one
 // transaction through the same reading service as the API, and a build's readings and
 // scoreboard exported. Parsing and quoting are papaparse's; the row checks are
-// shared/utils/csvReadings.ts.
+// shared/utils/csvReadings.ts. Parsing and checking an uploaded file (csvParse.ts) run in a worker
+// thread, a few files at a time per server, so a large file doesn't hold up other requests.
 
 /** The largest CSV the import reads (it is parsed in memory; 100,000 rows take about 3 MB). */
 export const CSV_IMPORT_MAX_BYTES = 20_000_000
-const PREVIEW_ROWS = 20
-const DELIMITERS = [',', ';', '\t', '|']
 
-export interface ParsedCsv {
-  delimiter: string
-  headerLine: number
-  header: string[]
-  rows: CsvRow[]
-  problems: CsvProblem[]
-}
-
-/** The file's text: UTF-8 (a byte-order mark dropped), or Latin-1 when it isn't valid UTF-8. */
-export async function readStoredText(file: FileRow, max = CSV_IMPORT_MAX_BYTES): Promise<string> {
+/** The file's bytes, after the checks that it is a text file small enough to import. */
+export async function readStoredBytes(file: FileRow, max = CSV_IMPORT_MAX_BYTES): Promise<Buffer> {
   if (kindOf(file.content_type) !== 'text') {
     throw createError({ statusCode: 422, message: `"${file.name}" is not a text file (${file.content_type}); import readings from a CSV file`, data: { fields: { file: 'Not a CSV file' } } })
   }
@@ -44,59 +40,86 @@ export async function readStoredText(file: FileRow, max = CSV_IMPORT_MAX_BYTES):
   }
   const chunks: Buffer[] = []
   for await (const chunk of await useFileStore().get(file.storage_key)) chunks.push(chunk as Buffer)
-  const bytes = Buffer.concat(chunks)
-  const body = bytes[0] === 0xEF && bytes[1] === 0xBB && bytes[2] === 0xBF ? bytes.subarray(3) : bytes
-  try {
-    return new TextDecoder('utf-8', { fatal: true }).decode(body)
+  return Buffer.concat(chunks)
+}
+
+/** CSV jobs (previews and imports) parsed at once by this server, and how many more may wait. */
+export const CSV_JOBS_RUNNING = 2
+export const CSV_JOBS_WAITING = 2
+export const CSV_BUSY_RETRY_AFTER_SECONDS = 5
+
+/** For a handler's catch: a 503 from a full CSV queue gets its Retry-After header; rethrows. */
+export function csvBusy(event: H3Event, err: unknown): never {
+  const retry = (err as { statusCode?: number, data?: { retryAfter?: number } }).data?.retryAfter
+  if ((err as { statusCode?: number }).statusCode === 503 && retry) setResponseHeader(event, 'Retry-After', retry)
+  throw err
+}
+
+let running = 0
+const waiting: (() => void)[] = []
+
+/**
+ * A turn to parse a CSV: at most CSV_JOBS_RUNNING at once, CSV_JOBS_WAITING more queued, and
+ * past that a 503 whose `data.retryAfter` the handler sends as Retry-After. Call the returned
+ * function when done (the next waiting job starts).
+ */
+async function csvTurn(): Promise<() => void> {
+  if (running >= CSV_JOBS_RUNNING) {
+    if (waiting.length >= CSV_JOBS_WAITING) {
+      throw createError({ statusCode: 503, message: `The server is reading ${running} other CSV files; try again in a few seconds`, data: { retryAfter: CSV_BUSY_RETRY_AFTER_SECONDS } })
+    }
+    await new Promise<void>(resolve => waiting.push(resolve))
   }
-  catch {
-    return body.toString('latin1')
+  else {
+    running++
+  }
+  let done = false
+  return () => {
+    if (done) return
+    done = true
+    const next = waiting.shift()
+    if (next) next() // the turn passes on: `running` stays
+    else running--
   }
 }
 
-/**
- * Rows of a CSV with the line each starts on. Blank rows are skipped; lines before the header
- * (an instrument's preamble) too: the header is the first row with as many cells as most of the
- * first rows have. The delimiter is the one those first lines use most (comma when none).
- */
-export function parseCsvText(raw: string): ParsedCsv {
-  const text = raw.replace(/\r\n?/g, '\n')
-  const firstLines = text.split('\n', 60).filter(l => l.trim() !== '')
-  const counts = DELIMITERS.map(d => firstLines.reduce((n, l) => n + l.split(d).length - 1, 0))
-  const best = Math.max(...counts)
-  const delimiter = best > 0 ? DELIMITERS[counts.indexOf(best)]! : ','
-
-  const all: (CsvRow & { error: string | null })[] = []
-  let start = 0
-  let line = 1
-  let counted = 0
-  Papa.parse<string[]>(text, {
-    delimiter,
-    newline: '\n',
-    step(result) {
-      // the row starts where the previous one ended: count the newlines up to there
-      for (; counted < start; counted++) if (text.charCodeAt(counted) === 10) line++
-      start = result.meta.cursor
-      const cells = result.data
-      if (cells.every(c => c.trim() === '')) return
-      const e = result.errors[0]
-      // text past the sniffed head of the file may still hold a NUL, which no column can store
-      const unstorable = cells.some(c => c.includes('\u0000')) ? 'a cell holds the NUL character' : null
-      all.push({ line, cells, error: e ? (e.code === 'MissingQuotes' ? 'a quoted field is not closed' : e.message) : unstorable })
-    },
-  })
-  const widths = new Map<number, number>()
-  for (const r of all.slice(0, 50)) widths.set(r.cells.length, (widths.get(r.cells.length) ?? 0) + 1)
-  const usual = [...widths].sort((a, b) => b[1] - a[1] || b[0] - a[0])[0]?.[0] ?? 0
-  const at = Math.max(0, all.findIndex(r => r.cells.length === usual))
-  const rows = all.slice(at + 1)
-  return {
-    delimiter,
-    headerLine: all[at]?.line ?? 1,
-    header: all[at]?.cells.map(c => c.trim()) ?? [],
-    rows: rows.map(({ line, cells }) => ({ line, cells })),
-    problems: rows.filter(r => r.error).map(r => ({ line: r.line, message: `Line ${r.line}: ${r.error}` })),
+// The worker script, built beside the server bundle (nuxt.config.ts); missing when the server
+// runs from source (nuxt dev), where the job runs on the main thread instead.
+let workerScript: string | null | undefined
+function findWorkerScript(): string | null {
+  if (workerScript !== undefined) return workerScript
+  workerScript = null
+  let dir = dirname(fileURLToPath(import.meta.url))
+  for (let up = 0; up < 5; up++) {
+    const candidate = join(dir, 'workers', 'csv.mjs')
+    if (existsSync(candidate)) return (workerScript = candidate)
+    dir = dirname(dir)
   }
+  return workerScript
+}
+
+/** Parse and check a CSV in a worker thread, so the event loop keeps answering other requests. */
+function inWorker<T>(job: CsvJob): Promise<T> {
+  const script = findWorkerScript()
+  if (!script) return Promise.resolve(runCsvJob(job) as T)
+  return new Promise<T>((resolve, reject) => {
+    const worker = new Worker(script)
+    let settled = false
+    const settle = (fn: () => void) => {
+      if (settled) return
+      settled = true
+      fn()
+      void worker.terminate()
+    }
+    worker.once('message', (m: { ok: true, result: T } | { ok: false, message: string }) =>
+      settle(() => (m.ok ? resolve(m.result) : reject(new Error(`CSV worker: ${m.message}`)))))
+    worker.once('error', err => settle(() => reject(err)))
+    worker.once('exit', code => settle(() => reject(new Error(`CSV worker stopped (exit code ${code})`))))
+    // the bytes move to the worker rather than being copied
+    const bytes = new Uint8Array(job.bytes.byteLength)
+    bytes.set(job.bytes)
+    worker.postMessage({ ...job, bytes }, [bytes.buffer])
+  })
 }
 
 async function buildFile(db: Db, buildId: string, id: string): Promise<FileRow> {
@@ -105,43 +128,24 @@ async function buildFile(db: Db, buildId: string, id: string): Promise<FileRow> 
   return file
 }
 
-const LOOKS_LIKE_INDEX = /^(#|no\.?|n|index|idx|sample|row|id|line)$/i
-
 /** GET /api/builds/:build/import/preview: the header, the first rows, and a guess at the columns. */
 export async function previewCsv(db: Db, buildId: string, fileId: string): Promise<CsvPreview> {
   const file = await buildFile(db, buildId, fileId)
   const base = { file: { id: file.id, name: file.name, size: Number(file.size) } }
-  let text: string
+  const release = await csvTurn()
   try {
-    text = await readStoredText(file)
+    let bytes: Buffer
+    try {
+      bytes = await readStoredBytes(file)
+    }
+    catch (err) {
+      if ((err as { statusCode?: number }).statusCode !== 422) throw err
+      return { ...base, delimiter: ',', headerLine: 1, columns: [], rows: [], totalRows: 0, guess: { value: null, unit: null, time: null, revision: null }, problem: (err as Error).message }
+    }
+    return { ...base, ...await inWorker<CsvPreviewParsed>({ kind: 'preview', bytes }) }
   }
-  catch (err) {
-    if ((err as { statusCode?: number }).statusCode !== 422) throw err
-    return { ...base, delimiter: ',', headerLine: 1, columns: [], rows: [], totalRows: 0, guess: { value: null, unit: null, time: null, revision: null }, problem: (err as Error).message }
-  }
-  const parsed = parseCsvText(text)
-  const sample = parsed.rows.slice(0, PREVIEW_ROWS)
-  const column = (test: (name: string, cells: string[]) => boolean) => {
-    const i = parsed.header.findIndex((name, at) => test(name, sample.map(r => (r.cells[at] ?? '').trim()).filter(Boolean)))
-    return i >= 0 ? parsed.header[i]! : null
-  }
-  const decimalComma = parsed.delimiter !== ','
-  const time = column((n, cells) => /time|date|stamp/i.test(n) && cells.length > 0 && cells.every(c => parseTimeCell(c) !== null))
-  const value = column((n, cells) => n !== time && !LOOKS_LIKE_INDEX.test(n) && !/time|date|stamp/i.test(n) && cells.length > 0 && cells.every(c => parseNumberCell(c, decimalComma) !== null))
-  return {
-    ...base,
-    delimiter: parsed.delimiter,
-    headerLine: parsed.headerLine,
-    columns: parsed.header,
-    rows: sample,
-    totalRows: parsed.rows.length,
-    guess: {
-      value,
-      time,
-      unit: column(n => /^units?$/i.test(n)),
-      revision: column(n => /^rev(ision)?$/i.test(n)),
-    },
-    problem: parsed.header.length === 0 ? 'The file is empty' : null,
+  finally {
+    release()
   }
 }
 
@@ -157,13 +161,21 @@ export async function importCsv(db: Db, actor: Actor, input: { build: Pick<Build
     throw createError({ statusCode: 409, message: `"${file.name}" was imported already; delete that reading first to import the file again`, data: { fields: { file: 'Imported already' } } })
   }
   const target = await findTarget(db, build.id, body.target)
-  const parsed = parseCsvText(await readStoredText(file))
-  const plan = planCsvImport(parsed.header, parsed.rows,
-    { value: body.valueColumn, unit: body.unitColumn, time: body.timeColumn, revision: body.revisionColumn },
-    { revision: body.revision, unit: body.unit, targetUnit: target.unit, decimalComma: parsed.delimiter !== ',' },
-    parsed.headerLine)
-  const problems = [...parsed.problems, ...plan.problems].sort((a, b) => a.line - b.line)
-  let problemCount = parsed.problems.length + plan.problemCount
+  const release = await csvTurn()
+  let planned: CsvPlanned
+  try {
+    planned = await inWorker<CsvPlanned>({
+      kind: 'plan',
+      bytes: await readStoredBytes(file),
+      columns: { value: body.valueColumn, unit: body.unitColumn, time: body.timeColumn, revision: body.revisionColumn },
+      defaults: { revision: body.revision, unit: body.unit, targetUnit: target.unit },
+    })
+  }
+  finally {
+    release()
+  }
+  const { plan, problems } = planned
+  let problemCount = planned.problemCount
 
   // revisions the file names must exist and be open
   if (problemCount === 0) {

@@ -5,7 +5,7 @@ import { CsvImportBody } from '#shared/utils/fileSchemas'
 export default defineEventHandler(async (event): Promise<CsvImported> => {
   const access = await requireBuildRole(event, getRouterParam(event, 'build')!, 'engineer', { allowRigToken: true })
   const body = await bodyAs(event, CsvImportBody)
-  const imported = await importCsv(useDb(), access.actor, { build: access.build, body })
+  const imported = await importCsv(useDb(), access.actor, { build: access.build, body }).catch(e => csvBusy(event, e))
   setResponseStatus(event, 201)
   return imported
 })

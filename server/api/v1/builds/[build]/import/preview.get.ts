@@ -5,5 +5,5 @@ import { CsvPreviewQuery } from '#shared/utils/fileSchemas'
 export default defineEventHandler(async (event): Promise<CsvPreview> => {
   const { build } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'engineer', { allowRigToken: true })
   const { file } = queryAs(event, CsvPreviewQuery)
-  return await previewCsv(useDb(), build.id, file)
+  return await previewCsv(useDb(), build.id, file).catch(e => csvBusy(event, e))
 })
