@@ -122,9 +122,9 @@ export function planCsvBytes(bytes: Uint8Array, columns: CsvColumns, defaults: O
   }
 }
 
-export type CsvJob =
-  | { kind: 'preview', bytes: Uint8Array }
-  | { kind: 'plan', bytes: Uint8Array, columns: CsvColumns, defaults: Omit<CsvDefaults, 'decimalComma'> }
+export type CsvJob
+  = | { kind: 'preview', bytes: Uint8Array }
+    | { kind: 'plan', bytes: Uint8Array, columns: CsvColumns, defaults: Omit<CsvDefaults, 'decimalComma'> }
 
 export function runCsvJob(job: CsvJob): CsvPreviewParsed | CsvPlanned {
   return job.kind === 'preview' ? previewCsvBytes(job.bytes) : planCsvBytes(job.bytes, job.columns, job.defaults)
