@@ -65,8 +65,8 @@ describe('formatNumber and formatSigned', () => {
 })
 
 describe('formatPercent', () => {
-  // NIST SP 811 (2008) §7.10.2: a space is left between the number and the symbol % (the section
-  // number is from memory)
+  // NIST SP 811 (2008), chapter 7 (values of quantities), on the percent sign: a space is left
+  // between the number and the symbol %. The exact section could not be checked here.
   it.each([
     [3.14159, '+3.1 %'],
     [-0.04, `${M}0.0 %`],
@@ -87,7 +87,8 @@ describe('halfWidth and formatNuEff', () => {
   it.each([
     [{ nuEff: 7.26, u: 0.1, ci95: [1, 2] as [number, number] }, '7.3'],
     [{ nuEff: 148.7, u: 0.1, ci95: [1, 2] as [number, number] }, '149'],
-    // GUM G.4.2 (from memory): components taken as exactly known have ν = ∞; with only those, ν_eff is ∞
+    // GUM (JCGM 100:2008) G.4.2: a Type B component taken as exactly known has ν = ∞; with only
+    // those, ν_eff is ∞ (the clause could not be re-read here; docs/computation.md states the rule)
     [{ nuEff: null, u: 0.1, ci95: [1, 2] as [number, number] }, '∞'],
     [{ nuEff: null, u: null, ci95: null }, '—'],
   ])('%j → %s', (s, text) => {
