@@ -217,8 +217,9 @@ async function moveOnce(db: Db, locked: boolean, f: FindingRow, body: z.output<t
     finding = await writeIfCurrent(db, f.id, body.version, { lane, rank, ...closing }, moved, audited, locked ? undefined : { buildId: f.build_id, lane, prev, next })
   }
   catch (error) {
-    // without the lock, a concurrent move took this rank first: the locked way places it anew
-    if (!locked && isUniqueViolation(error)) return null
+    // without the lock, a concurrent move took this rank first (or the two met in a deadlock):
+    // the locked way places it anew
+    if (!locked && isRace(error)) return null
     throw error
   }
   // without the lock, nothing written may also mean the neighbours moved: the locked way decides
@@ -230,7 +231,8 @@ async function moveOnce(db: Db, locked: boolean, f: FindingRow, body: z.output<t
 /** Two moves of one lane to the same place, again and again: the locked way gives up after this many. */
 const LOCKED_TRIES = 5
 
-const isUniqueViolation = (error: unknown) => (error as { code?: string }).code === '23505'
+/** A concurrent move got there first: a rank taken (unique violation) or a deadlock PostgreSQL broke. */
+const isRace = (error: unknown) => ['23505', '40P01'].includes((error as { code?: string }).code ?? '')
 
 /**
  * Moves a finding into `lane` between two neighbours (the caller checked that an override comes
@@ -262,7 +264,7 @@ export async function moveFinding(db: Db, actor: Actor, input: { finding: Findin
       })
     }
     catch (error) {
-      if (!isUniqueViolation(error)) throw error
+      if (!isRace(error)) throw error
       if (attempt === LOCKED_TRIES) {
         throw createError({ statusCode: 409, message: 'Several cards were just moved to the same place. Reload the board and try again.' })
       }
