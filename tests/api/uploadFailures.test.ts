@@ -31,7 +31,7 @@ function rawPost(path: string, headers: Record<string, string>, body: Buffer, ti
     }
     const timer = setTimeout(() => finish(0), timeoutMs)
     socket.on('error', () => finish(Number(/^HTTP\/1\.1 (\d{3})/.exec(got.toString('latin1'))?.[1] ?? 0)))
-    socket.on('data', (chunk) => {
+    socket.on('data', (chunk: Buffer) => {
       got = Buffer.concat([got, chunk])
       const text = got.toString('latin1')
       const head = text.indexOf('\r\n\r\n')
