@@ -34,6 +34,9 @@ export default defineNuxtConfig({
       trustProxy: false,
       failuresPerAddress: 5,
       failuresPerIp: 100,
+      // "forgot password" requests (e-mails) per address, and per IP, in the same window
+      resetsPerAddress: 3,
+      resetsPerIp: 10,
       windowMinutes: 15,
     },
     session: {

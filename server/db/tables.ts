@@ -96,6 +96,15 @@ export interface LoginFailureRow {
   at: Date
 }
 
+export interface ResetRequestRow {
+  id: number
+  email: string
+  ip: string
+  user_agent: string
+  at: Date
+  settled_at: Date | null
+}
+
 export interface AuditLogRow {
   id: number
   team_id: string | null
@@ -324,6 +333,7 @@ declare module 'knex/types/tables' {
     builds: Table<BuildRow>
     rig_tokens: Table<RigTokenRow>
     login_failures: Table<LoginFailureRow>
+    reset_requests: Table<ResetRequestRow>
     audit_log: Table<AuditLogRow>
     targets: Table<TargetRow>
     revisions: Table<RevisionRow>

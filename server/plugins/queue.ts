@@ -10,15 +10,18 @@ export default defineNitroPlugin((nitroApp) => {
     await boss.work<{ userId: string, eventId: number }>(QUEUES.deliver, options, async ([job]) => { await deliverEvent(job!.data) })
     await boss.work<{ userId: string, buildId: string, period: 'daily' | 'weekly' | 'now' }>(QUEUES.digest, options, async ([job]) => { await deliverDigest(job!.data) })
     await boss.work(QUEUES.mentions, options, async () => { await deliverMentions() })
+    await boss.work(QUEUES.resets, options, async () => { await deliverResets() })
     await boss.work(QUEUES.daily, options, async () => { await queueDigests('daily') })
     await boss.work(QUEUES.weekly, options, async () => { await queueDigests('weekly') })
     // the sweep catches events whose nudge was lost (e.g. a crash right after the commit)
     await boss.schedule(QUEUES.fanout, '* * * * *')
     await boss.schedule(QUEUES.mentions, '* * * * *')
+    await boss.schedule(QUEUES.resets, '* * * * *')
     await boss.schedule(QUEUES.daily, '0 7 * * *')
     await boss.schedule(QUEUES.weekly, '0 7 * * 1')
     await boss.send(QUEUES.fanout, {})
     await boss.send(QUEUES.mentions, {})
+    await boss.send(QUEUES.resets, {})
   }
   start().catch(err => console.error('[queue] could not start; e-mail is not being sent:', err.message))
 

@@ -13,6 +13,8 @@ export const QUEUES = {
   digest: 'ratchet-digest',
   /** the e-mails to people mentioned in comments (server/utils/findings/mentions.ts) */
   mentions: 'ratchet-mentions',
+  /** "forgot password" e-mails (server/utils/access/resets.ts) */
+  resets: 'ratchet-resets',
   /** cron: queue the daily / weekly digests */
   daily: 'ratchet-digest-daily',
   weekly: 'ratchet-digest-weekly',
@@ -70,4 +72,12 @@ export function nudgeMentions() {
   useQueue()
     .then(boss => boss.send(QUEUES.mentions, {}, { singletonKey: 'mentions', singletonSeconds: 1, singletonNextSlot: true }))
     .catch(err => console.error('[queue] mentions nudge failed', err.message))
+}
+
+/** Asks a worker to settle pending password-reset requests now. */
+export function nudgeResets() {
+  if (process.env.RATCHET_QUEUE === 'off') return
+  useQueue()
+    .then(boss => boss.send(QUEUES.resets, {}, { singletonKey: 'resets', singletonSeconds: 1, singletonNextSlot: true }))
+    .catch(err => console.error('[queue] resets nudge failed', err.message))
 }

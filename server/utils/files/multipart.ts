@@ -9,6 +9,8 @@ import { createError } from 'h3'
 /** Stream buffers of 1 MiB: far fewer hand-offs than the 16–64 KiB defaults, still bounded. */
 export const UPLOAD_CHUNK = 1024 * 1024
 const CHUNK = UPLOAD_CHUNK
+/** After a failure, how long the answer waits for the store to give up the partial file. */
+const GIVE_UP_MS = 5000
 
 export interface Received { filename: string, bytes: number, sha256: string, head: Buffer }
 
@@ -17,7 +19,7 @@ export interface Received { filename: string, bytes: number, sha256: string, hea
  * "file" (only one is allowed) and gets the text fields sent before it. On any failure the rest
  * of the body is read and dropped, so the client gets the answer.
  */
-export function readMultipart(req: IncomingMessage, headers: IncomingHttpHeaders, onFile: (stream: Readable, filename: string, fieldsBefore: Record<string, string>) => Promise<Received>) {
+export function readMultipart(req: IncomingMessage, headers: IncomingHttpHeaders, onFile: (stream: Readable, filename: string, fieldsBefore: Record<string, string>, signal: AbortSignal) => Promise<Received>) {
   return new Promise<{ fields: Record<string, string>, file: Received | null }>((resolve, reject) => {
     let parser: busboy.Busboy
     try {
@@ -31,29 +33,44 @@ export function readMultipart(req: IncomingMessage, headers: IncomingHttpHeaders
     let pending: Promise<Received> | null = null
     let current: Readable | null = null
     let settled = false
+    // tells `onFile` to stop writing (it may still be checking the fields when the body fails)
+    const abort = new AbortController()
     const fail = (err: unknown) => {
       if (settled) return
       settled = true
       req.unpipe(parser)
       req.resume()
+      abort.abort(err)
       current?.destroy(err as Error)
-      // answer once the file's bytes are written or given up, so the caller can remove them
-      Promise.allSettled([pending]).then(() => reject(err))
+      // answer once the file's bytes are written or given up, so the caller can remove them; a
+      // store that does not give up in time is left to the sweep rather than hold the answer
+      let timer: NodeJS.Timeout | undefined
+      const givenUp = new Promise<void>((done) => { timer = setTimeout(done, GIVE_UP_MS) })
+      Promise.race([Promise.allSettled([pending]), givenUp]).then(() => {
+        clearTimeout(timer)
+        reject(err)
+      })
     }
     parser.on('file', (name, stream, info) => {
       // its errors reach the caller through `pending` and `fail`; without a listener, a stream
       // destroyed by `fail` before anyone read it would throw outside any request
       stream.on('error', () => {})
+      // parts after a failure (busboy finishes the chunk it was given) are dropped unread
+      if (settled) {
+        stream.resume()
+        return
+      }
       if (name !== 'file') {
         stream.resume()
         fail(createError({ statusCode: 400, message: `Send the file in a field named "file" (got "${name}")` }))
         return
       }
       current = stream
-      pending = onFile(stream, info.filename, { ...fields })
+      pending = onFile(stream, info.filename, { ...fields }, abort.signal)
       pending.catch(fail)
     })
     parser.on('field', (name, value, info) => {
+      if (settled) return
       if (info.nameTruncated || info.valueTruncated) fail(createError({ statusCode: 400, message: `The field "${name.slice(0, 40)}" is too long` }))
       else fields[name] = value
     })

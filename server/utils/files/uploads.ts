@@ -159,13 +159,18 @@ export async function receiveUpload(db: Db, actor: Actor, input: { build: Pick<B
   const key = newStorageKey()
   let written = false
   try {
-    const { fields, file } = await readMultipart(input.body, headers, async (stream, filename, before) => {
+    const { fields, file } = await readMultipart(input.body, headers, async (stream, filename, before, signal) => {
       // fields sent ahead of the file are checked before a byte is stored
       await resolveAttachment(db, build.id, parseOr400(UploadFields, before))
+      // the body may have failed meanwhile (its stream is then destroyed and would never end)
+      if (signal.aborted) throw signal.reason
       const meter = new Meter(limit, overLimit)
-      // the store's promise carries the meter's errors (over the limit, a broken stream)
+      // the store's promise carries the meter's errors (over the limit, a broken stream, a
+      // failure elsewhere in the body)
       meter.on('error', () => {})
       stream.on('error', err => meter.destroy(err))
+      const stop = () => meter.destroy(signal.reason as Error)
+      signal.addEventListener('abort', stop, { once: true })
       stream.pipe(meter)
       written = true
       try {
@@ -174,10 +179,15 @@ export async function receiveUpload(db: Db, actor: Actor, input: { build: Pick<B
       catch (err) {
         stream.unpipe(meter)
         stream.resume()
-        // the limits and a client that went away come with their status; anything else is the store
+        // the limits, a failed body and a client that went away come with their status; anything
+        // else is the store
+        if (signal.aborted) throw signal.reason
         if (statusOf(err)) throw err
         console.error(`files: storing ${key} failed:`, err)
         throw createError({ statusCode: 503, message: 'The file can’t be stored right now; try again in a while' })
+      }
+      finally {
+        signal.removeEventListener('abort', stop)
       }
       return { filename, bytes: meter.bytes, sha256: meter.digest(), head: meter.firstBytes() }
     })
