@@ -1,5 +1,5 @@
 import { readdirSync, readFileSync, statSync } from 'node:fs'
-import { join, relative } from 'node:path'
+import { join } from 'node:path'
 import { Validator } from '@seriousme/openapi-schema-validator'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { z } from 'zod'
@@ -12,31 +12,14 @@ import {
 import { Client, closeTestDb, makeWorld, type World } from '../support/api'
 import { upload } from '../support/files'
 import { BASE_URL, ROOT } from '../support/env'
+import { routeFiles, routePath } from '../support/routeFiles'
 import { routes } from '../support/routeTable'
 
 type Doc = Record<string, any>
 
 /** Every route file under server/api as "method /api/path/{param}" → its path in the repository. */
 function handlerFiles(): Map<string, string> {
-  const apiDir = join(ROOT, 'server/api')
-  const out = new Map<string, string>()
-  const walk = (dir: string) => {
-    for (const name of readdirSync(dir)) {
-      const full = join(dir, name)
-      if (statSync(full).isDirectory()) {
-        walk(full)
-        continue
-      }
-      const m = name.match(/^(.*)\.(get|post|patch|put|delete)\.ts$/)
-      if (!m) continue
-      const segments = relative(apiDir, dir).split('/').filter(Boolean)
-      if (m[1] !== 'index') segments.push(m[1]!)
-      const path = '/api/' + segments.map(s => s.replace(/^\[(.+)\]$/, '{$1}')).join('/')
-      out.set(`${m[2]} ${path}`, relative(ROOT, full))
-    }
-  }
-  walk(apiDir)
-  return out
+  return new Map(routeFiles().map(r => [`${r.method} ${routePath(r.segments, name => `{${name}}`)}`, r.file]))
 }
 
 /** Every export of shared/utils/*Schemas.ts, by name: the schemas a handler may validate with. */

@@ -1,31 +1,13 @@
-import { readdirSync, statSync } from 'node:fs'
-import { join, relative } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Client, closeTestDb, makeWorld, type World } from '../support/api'
-import { ROOT } from '../support/env'
+import { routeFiles, routePath } from '../support/routeFiles'
 import { ACTORS, routes, type Actor, type RouteCase } from '../support/routeTable'
 
 /** Every route file under server/api as "METHOD /api/path/:param". */
 function serverRoutes(): string[] {
-  const apiDir = join(ROOT, 'server/api')
-  const out: string[] = []
-  const walk = (dir: string) => {
-    for (const name of readdirSync(dir)) {
-      const full = join(dir, name)
-      if (statSync(full).isDirectory()) {
-        walk(full)
-        continue
-      }
-      const m = name.match(/^(.*)\.(get|post|patch|put|delete)\.ts$/)
-      if (!m) continue
-      const segments = relative(apiDir, dir).split('/').filter(Boolean)
-      if (m[1] !== 'index') segments.push(m[1]!)
-      const path = '/api/' + segments.map(s => s.replace(/^\[(.+)\]$/, ':$1')).join('/')
-      out.push(`${m[2]!.toUpperCase()} ${path.replace(/\/$/, '')}`)
-    }
-  }
-  walk(apiDir)
-  return out.sort()
+  return routeFiles()
+    .map(r => `${r.method.toUpperCase()} ${routePath(r.segments, name => `:${name}`).replace(/\/$/, '')}`)
+    .sort()
 }
 
 function clientFor(w: World, actor: Actor, cookie?: string): Client {

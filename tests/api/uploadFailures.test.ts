@@ -141,7 +141,10 @@ describe('broken uploads answer at once and leave nothing behind', () => {
       const socket = connect(Number(url.port), url.hostname, () => {
         socket.write([`POST /api/v1/builds/${w.build.slug}/files HTTP/1.1`, `Host: ${url.host}`, `Content-Length: ${body.length}`, `Content-Type: ${type}`, `Cookie: ${w.engineer.client.cookie}`, '', ''].join('\r\n'))
         socket.write(body.subarray(0, 200_000))
-        setTimeout(() => { socket.destroy(); resolve() }, 500)
+        setTimeout(() => {
+          socket.destroy()
+          resolve()
+        }, 500)
       })
       socket.on('error', () => {})
     })
