@@ -127,13 +127,25 @@ describe('the findings board in Chromium', () => {
     await card(page, ids.keys!).focus()
     await page.keyboard.press('Shift+F10')
     await page.waitForSelector('[data-testid="card-menu"]')
+    // (the server's answer is held back until the user has gone on to another card: focus stays there)
+    let release!: () => void
+    const held = new Promise<void>((resolve) => { release = resolve })
+    await page.route(`**/api/v1/findings/${ids.keys}/move`, async (route) => { await held; await route.continue() })
+    const parked = page.waitForResponse(r => r.url().includes(`/api/v1/findings/${ids.keys}/move`))
     await page.locator('[data-testid="card-to-parked"]').click()
     await page.waitForFunction(id => Boolean(document.querySelector(`[data-testid="lane-list-parked"] [data-card-id="${id}"]`)), ids.keys)
+    await card(page, ids.xss!).focus()
+    release()
+    expect((await parked).status()).toBe(200)
+    await page.waitForFunction(() => /moved to Parked/.test(document.querySelector('[data-testid="board-live"]')?.textContent ?? ''))
+    await page.unroute(`**/api/v1/findings/${ids.keys}/move`)
+    // the move's own follow-up (refresh, then focus) runs in the next few ticks: let two frames pass
+    await page.evaluate(() => new Promise(resolve => requestAnimationFrame(() => requestAnimationFrame(resolve))))
+    await expect(page.evaluate(() => document.activeElement?.getAttribute('data-card-id'))).resolves.toBe(ids.xss)
 
     // someone else moves a card meanwhile: the stale move is refused, and the card shows where it is now and why
     const other = await w.owner.client.post(`/api/v1/findings/${ids.xss}/move`, { lane: 'bench', version: 1 })
     expect(other.status).toBe(200)
-    await card(page, ids.xss!).focus()
     const stale = page.waitForResponse(r => r.url().includes(`/api/v1/findings/${ids.xss}/move`))
     await page.keyboard.press('Alt+ArrowRight')
     expect((await stale).status()).toBe(409)
