@@ -1,13 +1,20 @@
 import { z } from 'zod'
-import type { Quantity } from '#shared/utils/units'
 
-const QUANTITIES = Object.keys(QUANTITY_LABELS) as [Quantity, ...Quantity[]]
 const Query = z.object({
-  quantity: z.enum(QUANTITIES, { error: `quantity is one of ${QUANTITIES.join(', ')}` }).optional(),
+  quantity: z.string().trim().max(80, 'A quantity has at most 80 characters')
+    .refine(q => Object.hasOwn(QUANTITY_LABELS, q) || q.startsWith('dim:'), 'quantity is a named quantity (torque, stiffness …) or dim: and its SI base units')
+    .optional(),
 })
 
-// The units Ratchet converts, for the unit picker (public: nothing here is private).
+// Units for the unit picker, with their quantity and the words a search finds them by
+// (public: nothing here is private). Any other unit expression is accepted too.
 export default defineEventHandler((event) => {
   const { quantity } = queryAs(event, Query)
-  return listUnits(quantity).map(u => ({ unit: u.unit, quantity: u.quantity, quantityLabel: QUANTITY_LABELS[u.quantity], label: u.label }))
+  return listUnits(quantity || undefined).map(u => ({
+    unit: u.unit,
+    quantity: u.quantity,
+    quantityLabel: quantityLabel(u.quantity),
+    label: u.label,
+    words: quantityWords(u.quantity),
+  }))
 })

@@ -273,4 +273,18 @@ export interface UnitOption {
   quantity: string
   quantityLabel: string
   label: string
+  /** words a search finds the unit's quantity by, e.g. "spring rate" for stiffness */
+  words: string
+}
+
+/** GET /api/units/check */
+export interface UnitCheck {
+  unit: string
+  quantity: string
+  quantityLabel: string
+  label: string
+  /** the SI unit of the quantity */
+  si: string
+  /** e.g. "1 lbf/in = 0.175127 N/mm"; null for the SI unit itself */
+  conversion: string | null
 }

@@ -7,8 +7,7 @@
 // Angles count as dimensionless, as in SI (rad = 1): torque × angular speed is a power.
 
 import type { ConstantNode, FunctionNode, MathNode, OperatorNode, ParenthesisNode, SymbolNode } from 'mathjs'
-import { math, parseUnit, QUANTITY_LABELS, SI_UNIT, unitForMath, UnitError } from './units'
-import type { Quantity } from './units'
+import { baseUnitsOf, math, parseUnit, QUANTITY_LABELS, quantitiesOfDims, quantityLabel, sameDims, SI_UNIT, UnitError } from './units'
 
 export type FormulaErrorCode = 'syntax' | 'unknown-key' | 'dimension' | 'cycle' | 'evaluate'
 
@@ -119,48 +118,25 @@ export function parseFormula(formula: string): { symbols: string[] } {
 // formula can be reported with the two sides that disagree.
 
 type Dims = number[]
-const BASE = math.Unit.BASE_DIMENSIONS as string[]
-const ANGLE = BASE.indexOf('ANGLE')
-const SYMBOL: Record<string, string> = {
-  MASS: 'kg', LENGTH: 'm', TIME: 's', CURRENT: 'A', TEMPERATURE: 'K',
-  LUMINOUS_INTENSITY: 'cd', AMOUNT_OF_SUBSTANCE: 'mol', BIT: 'bit',
-}
-const NONE: Dims = BASE.map(() => 0)
+const NONE: Dims = math.Unit.BASE_DIMENSIONS.map(() => 0)
+const ANGLE = (math.Unit.BASE_DIMENSIONS as string[]).indexOf('ANGLE')
 
+/** The dimension of a unit with the angle dropped (a radian is a ratio of lengths). */
 function dimsOfUnit(unit: string): Dims {
-  const dims = [...math.unit(1, unitForMath(unit)).dimensions]
+  const dims = [...parseUnit(unit).dims]
   if (ANGLE >= 0) dims[ANGLE] = 0
   return dims
 }
 
-const QUANTITY_DIMS = (Object.keys(SI_UNIT) as Quantity[]).map(q => ({ quantity: q, dims: dimsOfUnit(SI_UNIT[q]) }))
-const dimsOfQuantity = (q: Quantity) => QUANTITY_DIMS.find(d => d.quantity === q)!.dims
-
-const sameDims = (a: Dims, b: Dims) => a.every((x, i) => Math.abs(x - b[i]!) < 1e-9)
 const isNone = (a: Dims) => sameDims(a, NONE)
-
-function superscript(n: number): string {
-  if (!Number.isInteger(n)) return `^${Number(n.toPrecision(6))}`
-  const digits = '⁰¹²³⁴⁵⁶⁷⁸⁹'
-  return n === 1 ? '' : String(n).replace(/\d/g, d => digits[Number(d)]!).replace('-', '⁻')
-}
 
 /** "power (W)", "torque (N·m) or energy (J)", or base units such as "kg·m/s³" when nothing matches. */
 function describe(dims: Dims): string {
-  const names = QUANTITY_DIMS.filter(d => sameDims(d.dims, dims))
+  const names = quantitiesOfDims(dims, true)
     // An angle is dimensionless here; name it only when nothing better fits.
-    .filter((d, _, all) => d.quantity !== 'angle' || all.length === 1)
-  if (names.length === 1) return `${QUANTITY_LABELS[names[0]!.quantity]} (${SI_UNIT[names[0]!.quantity]})`
-  // quantities that share a dimension (N·m and J, Hz and rad/s) each with its own unit
-  if (names.length > 1) return names.map(d => `${QUANTITY_LABELS[d.quantity]} (${SI_UNIT[d.quantity]})`).join(' or ')
-  const part = (sign: 1 | -1) => BASE
-    .map((b, i) => ({ sym: SYMBOL[b], exp: sign * dims[i]! }))
-    .filter(p => p.sym && p.exp > 0)
-    .map(p => `${p.sym}${superscript(p.exp)}`)
-    .join('·')
-  const top = part(1) || '1'
-  const bottom = part(-1)
-  return bottom ? `${top}/${bottom}` : top
+    .filter((q, _, all) => q !== 'angle' || all.length === 1)
+  if (names.length > 0) return names.map(q => `${QUANTITY_LABELS[q]} (${SI_UNIT[q]})`).join(' or ')
+  return baseUnitsOf(dims, false)
 }
 
 function dimsOf(node: MathNode, inputs: Record<string, Dims>): Dims {
@@ -228,10 +204,10 @@ function symbolsOf(node: MathNode): string[] {
   return [...found]
 }
 
-/** The quantity a display unit measures, as a FormulaError when the unit is not known. */
-function quantityOf(unit: string, whose: string): Quantity {
+/** The dimension of a display unit, as a FormulaError when the unit is not known. */
+function dimsOfTarget(unit: string, whose: string): Dims {
   try {
-    return parseUnit(unit).quantity
+    return dimsOfUnit(unit)
   }
   catch (e) {
     if (e instanceof UnitError) throw new FormulaError('dimension', `${whose}: ${e.message}`)
@@ -252,13 +228,14 @@ function checkParsed(parsed: Parsed, inputs: Record<string, { unit: string }>, r
     )
   }
   const dims: Record<string, Dims> = {}
-  for (const key of parsed.symbols) dims[key] = dimsOfQuantity(quantityOf(inputs[key]!.unit, `Target "${key}"`))
-  const target = quantityOf(resultUnit, 'This target')
+  for (const key of parsed.symbols) dims[key] = dimsOfTarget(inputs[key]!.unit, `Target "${key}"`)
+  const target = dimsOfTarget(resultUnit, 'This target')
   const gives = dimsOf(parsed.node, dims)
-  if (!sameDims(gives, dimsOfQuantity(target))) {
+  if (!sameDims(gives, target)) {
+    const unit = parseUnit(resultUnit)
     throw new FormulaError(
       'dimension',
-      `The formula gives ${describe(gives)} but this target is measured in ${QUANTITY_LABELS[target]} (${parseUnit(resultUnit).unit})`,
+      `The formula gives ${describe(gives)} but this target is measured in ${quantityLabel(unit.quantity)} (${unit.unit})`,
     )
   }
 }

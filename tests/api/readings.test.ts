@@ -142,8 +142,8 @@ describe('readings', () => {
     const raw = (text: string) => () => w.engineer.client.post(`/api/v1/builds/${w.build.slug}/readings`, text, json)
     const valid = () => ({ revision: c.label, target: c.key, values: [21, 22], unit: 'km/h' })
 
-    it('422 for an unknown unit', async () => {
-      await expectRefused(w.build.id, 422, () => post({ ...valid(), unit: 'furlong/fortnight' }), /Unknown unit/)
+    it('400 for an unreadable unit', async () => {
+      await expectRefused(w.build.id, 400, () => post({ ...valid(), unit: 'furlong/fortnite' }), /Unknown unit/)
     })
 
     it('422 for a unit of another quantity, naming both quantities', async () => {

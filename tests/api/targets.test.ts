@@ -86,13 +86,13 @@ describe('targets', () => {
       expect(res.status).toBe(201)
     })
 
-    it('422 for an unknown unit, naming it', async () => {
-      const res = await expectRefused(w.build.id, 422, () => w.engineer.client.post(path(), { ...valid(), unit: 'furlong' }), /Unknown unit "furlong"/)
+    it('400 for an unreadable unit, naming it', async () => {
+      const res = await expectRefused(w.build.id, 400, () => w.engineer.client.post(path(), { ...valid(), unit: 'zorkmid' }), /Unknown unit "zorkmid": "zorkmid" is not a unit/)
       expect(res.body.data.fields.unit).toBeTruthy()
     })
 
-    it('422 for "fps", which is ambiguous (frames or feet per second)', async () => {
-      await expectRefused(w.build.id, 422, () => w.engineer.client.post(path(), { ...valid(), unit: 'fps' }))
+    it('400 for "fps", which is ambiguous (frames or feet per second)', async () => {
+      await expectRefused(w.build.id, 400, () => w.engineer.client.post(path(), { ...valid(), unit: 'fps' }))
     })
 
     it.each([
@@ -257,12 +257,13 @@ describe('GET /api/units', () => {
     expect(res.status).toBe(200)
     expect(res.body.map((u: { unit: string }) => u.unit)).toEqual(expect.arrayContaining(['N·m', 'N·cm', 'kgf·cm', 'lbf·ft', 'ozf·in']))
     expect(res.body.every((u: { quantity: string }) => u.quantity === 'torque')).toBe(true)
-    expect(res.body[0]).toEqual({ unit: 'N·m', quantity: 'torque', quantityLabel: 'torque', label: 'newton metre' })
+    expect(res.body[0]).toEqual({ unit: 'N·m', quantity: 'torque', quantityLabel: 'torque', label: 'newton metre', words: 'moment' })
   })
 
   it('lists every unit without a filter, and refuses an unknown quantity', async () => {
     const all = await new Client().get('/api/units')
-    expect(new Set(all.body.map((u: { quantity: string }) => u.quantity)).size).toBe(18)
+    // every named quantity has at least its SI unit listed
+    expect(new Set(all.body.map((u: { quantity: string }) => u.quantity)).size).toBe(49)
     const bad = await new Client().get('/api/units?quantity=colour')
     expect(bad.status).toBe(400)
     expect(bad.body.message).toMatch(/quantity/)

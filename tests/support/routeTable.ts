@@ -176,6 +176,7 @@ export const routes: RouteCase[] = [
 
   // builds, targets, revisions, readings and the scoreboard
   { method: 'GET', path: '/api/units', expect: e(200, 200, 200, 200, 200, 200), prepare: () => ({ query: 'quantity=torque' }) },
+  { method: 'GET', path: '/api/units/check', expect: e(200, 200, 200, 200, 200, 200), prepare: () => ({ query: 'unit=lbf%2Fin&to=N%2Fmm' }) },
   { method: 'GET', path: '/api/v1/openapi.json', expect: e(200, 200, 200, 200, 200, 200) },
   { method: 'GET', path: '/api/v1/docs', expect: e(200, 200, 200, 200, 200, 200) },
   { method: 'GET', path: '/api/v1/docs/:file', expect: e(200, 200, 200, 200, 200, 200), prepare: () => ({ params: { file: 'init.js' } }) },

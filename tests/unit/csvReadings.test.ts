@@ -75,7 +75,7 @@ describe('planCsvImport', () => {
       'Line 2: no time in column "time"',
       'Line 3: "12,5" in column "torque" is not a number (use a dot as the decimal separator)',
       'Line 3: no time in column "time"',
-      'Line 4: unit "V" is a voltage unit; this target is measured in torque',
+      'Line 4: unit "V" is a voltage unit; this target is measured in torque (N·m)',
       'Line 4: no time in column "time"',
       'Line 5: unit "furlongs" is not a unit Ratchet knows',
       'Line 5: no time in column "time"',

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import {
-  QUANTITY_LABELS, SI_UNIT, UnitError, assertSameQuantity, diffFromSI, diffToSI, fromSI, listUnits,
-  math, parseUnit, toSI, unitForMath, type Quantity,
+  QUANTITY_LABELS, SI_UNIT, UnitError, assertSameQuantity, conversionText, diffFromSI, diffToSI, fromSI, listUnits,
+  math, parseUnit, quantityLabel, siUnitOf, toSI, unitForMath, type Quantity,
 } from '../../shared/utils/units'
 
 function expectRelative(actual: number, expected: number, tolerance: number) {
@@ -136,10 +136,18 @@ describe('spellings', () => {
     expect(parseUnit(text).unit).toBe(canonical)
   })
 
-  // Ambiguous or wrong-by-convention spellings are refused rather than guessed (common
-  // practice, no source): fps (feet or frames per second), kg·cm (a mass times a length),
-  // G (gauss, giga- or gravity), MA/MV (mega-, not milli-), C for a temperature (coulomb).
-  it.each(['fps', 'kg·cm', 'G', 'MA', 'xyz', 'ft·lb', 'deg C'])('"%s" is refused as unknown', (text) => {
+  // Spellings mathjs would read but that people type meaning something else are refused with
+  // the spelling to use (common practice, no source): kg·cm (a mass times a length, meant as
+  // kgf·cm), ft·lb (pound mass), deg C (a degree times a coulomb), MA (mega-, meant as milli-),
+  // G (meant as standard gravity).
+  it.each([
+    ['kg·cm', 'kgf·cm'], ['G', 'gn'], ['MA', 'mA'], ['ft·lb', 'lbf·ft'], ['deg C', '°C'], ['lb in', 'lbf·in'],
+  ])('"%s" is refused as ambiguous, pointing to %s', (text, instead) => {
+    expect(() => parseUnit(text)).toThrow(`Ambiguous unit "${text}"`)
+    expect(() => parseUnit(text)).toThrow(instead)
+  })
+
+  it.each(['fps', 'xyz'])('"%s" is refused as unknown', (text) => {
     expect(() => parseUnit(text)).toThrow(UnitError)
     expect(() => parseUnit(text)).toThrow(`Unknown unit "${text}"`)
     try {
@@ -248,5 +256,235 @@ describe('round trips and mathjs', () => {
   it('a speed converts between display units through SI (1 mph = 1.609344 km/h, exact)', () => {
     // Exact: 1 mile = 1.609344 km (SP 811 B.8).
     expectRelative(fromSI(toSI(1, 'mph'), 'km/h'), 1.609344, 1e-12)
+  })
+})
+
+describe('open unit expressions', () => {
+  // Exact decimal definitions, as text, from NIST SP 811 (2008) appendix B.8 and the SI
+  // Brochure (9th ed., 2019): prefixes are exact powers of ten; 1 in = 0.0254 m, 1 ft = 0.3048 m,
+  // 1 lb = 0.45359237 kg, gn = 9.80665 m/s², 1 L = 1e-3 m³ (1964 CGPM), 1 h = 3600 s,
+  // 1 min = 60 s, 1 bar = 1e5 Pa, 1 U.S. gallon = 231 in³, 1 byte = 8 bit (IEC 80000-13).
+  // Each expected factor below is the exact rational value of 1 `from` in `to`, computed
+  // with fractions from those decimals, so the only rounding is the final conversion to a double.
+  const F = (x: string | number) => math.fraction(String(x))
+  const LB = F('0.45359237')
+  const GN_ = F('9.80665')
+  const LBF_ = LB.mul(GN_)
+  const OZF_ = LBF_.div(F(16))
+  const IN = F('0.0254')
+  const FT = F('0.3048')
+  const GAL = IN.pow(3).mul(F(231))
+
+  it.each([
+    // [from, to, exact value of 1 from in to]
+    ['km/s', 'm/s', F(1000)],
+    ['km/s', 'km/h', F(3600)],
+    ['N/mm', 'N/m', F(1000)],
+    ['lbf/in', 'N/mm', LBF_.div(IN).div(F(1000))], // 0.175126835246476…
+    ['lbf/in', 'N/m', LBF_.div(IN)],
+    ['kN/m', 'N/mm', F(1)],
+    ['Wh/kg', 'J/kg', F(3600)],
+    ['Wh/kg', 'J/g', F('3.6')],
+    ['kWh/kg', 'Wh/kg', F(1000)],
+    ['J/g', 'J/kg', F(1000)],
+    ['mAh', 'C', F('3.6')],
+    ['mAh', 'Ah', F('0.001')],
+    ['kohm', 'Ω', F(1000)],
+    ['kΩ', 'MΩ', F('0.001')],
+    ['mΩ', 'Ω', F('0.001')],
+    ['uF', 'F', F('0.000001')],
+    ['µF', 'nF', F(1000)],
+    ['nF', 'pF', F(1000)],
+    ['mH', 'µH', F(1000)],
+    ['L/min', 'm³/s', F('0.001').div(F(60))],
+    ['L/min', 'm^3/h', F('0.06')],
+    ['m³/h', 'L/min', F(1000).div(F(60))],
+    ['gal/min', 'L/min', GAL.mul(F(1000))], // 3.785411784 L/min
+    ['g/cm^3', 'kg/m³', F(1000)],
+    ['g/cm³', 'g/mL', F(1)],
+    ['MPa', 'N/mm²', F(1)],
+    ['MPa', 'psi', F(1000000).div(LBF_.div(IN.pow(2)))],
+    ['GPa', 'MPa', F(1000)],
+    ['bar', 'kPa', F(100)],
+    ['mN*m', 'N·m', F('0.001')],
+    ['mN·m', 'ozf·in', F('0.001').div(OZF_.mul(IN))],
+    ['ozf*in', 'N·m', OZF_.mul(IN)], // 7.0615518142…e-3
+    ['lbf·ft', 'N·m', LBF_.mul(FT)],
+    ['kN·m', 'lbf·ft', F(1000).div(LBF_.mul(FT))],
+    ['N·mm', 'N·cm', F('0.1')],
+    ['mm²', 'm²', F('0.000001')],
+    ['cm²', 'mm²', F(100)],
+    ['cm³', 'mL', F(1)],
+    ['L', 'cm³', F(1000)],
+    ['kg·m²', 'g·cm²', F(10000000)],
+    ['N·s', 'lbf·s', F(1).div(LBF_)],
+    ['kB', 'bit', F(8000)],
+    ['Mbit/s', 'kbit/s', F(1000)],
+    ['mPa·s', 'Pa·s', F('0.001')],
+    ['W/kg', 'kW/kg', F('0.001')],
+    ['K/W', '°C/W', F(1)],
+    ['rpm', 'rev/s', F(1).div(F(60))],
+    ['kip', 'lbf', F(1000)],
+    ['kgf/cm²', 'kPa', GN_.mul(F(10000)).div(F(1000))], // 98.0665 kPa
+    ['ppm', '%', F('0.0001')],
+  ] as const)('1 %s = %s %s (SP 811 definitions, rel. error ≤ 1e-12)', (from, to, exact) => {
+    const { entered, target } = assertSameQuantity(from, to)
+    expect(entered.offset).toBe(0)
+    expectRelative(entered.factor / target.factor, exact.valueOf(), 1e-12)
+    expectRelative(fromSI(toSI(1, from), to), exact.valueOf(), 1e-12)
+  })
+
+  it.each([
+    // typed, canonical, quantity
+    ['km/s', 'km/s', 'velocity'],
+    ['N/mm', 'N/mm', 'stiffness'],
+    ['lbf/in', 'lbf/in', 'stiffness'],
+    ['Wh/kg', 'Wh/kg', 'specificEnergy'],
+    ['Ω', 'Ω', 'resistance'],
+    ['ohm', 'Ω', 'resistance'],
+    ['kohm', 'kΩ', 'resistance'],
+    ['uF', 'µF', 'capacitance'],
+    ['μF', 'µF', 'capacitance'], // Greek mu typed for the micro sign
+    ['mH', 'mH', 'inductance'],
+    ['L/min', 'L/min', 'flowRate'],
+    ['m3/h', 'm³/h', 'flowRate'],
+    ['m³/h', 'm³/h', 'flowRate'],
+    ['g/cm^3', 'g/cm³', 'density'],
+    ['MPa', 'MPa', 'pressure'],
+    ['mN*m', 'mN·m', 'torque'],
+    ['mN m', 'mN·m', 'torque'],
+    ['ozf*in', 'ozf·in', 'torque'],
+    ['kg m^2', 'kg·m²', 'momentOfInertia'],
+    ['m^2', 'm²', 'area'],
+    ['m²', 'm²', 'area'],
+    ['cm^3', 'cm³', 'volume'],
+    ['K/W', 'K/W', 'thermalResistance'],
+    ['W/(m*K)', 'W/(m·K)', 'thermalConductivity'],
+    ['kbps', 'kbit/s', 'dataRate'],
+    ['rad/s^2', 'rad/s²', 'angularAcceleration'],
+    ['N*s', 'N·s', 'impulse'],
+    ['1/s', '1/s', 'frequency'],
+    ['s^-1', '1/s', 'frequency'],
+    ['N/s', 'N/s', 'dim:kg·m/s³'],
+    ['1/mm', '1/mm', 'dim:1/m'],
+    ['V/Hz^0.5', 'V/Hz^0.5', 'dim:kg·m²/(s^2.5·A)'],
+    ['((m))', 'm', 'length'],
+  ])('"%s" reads as %s, %s', (text, canonical, quantity) => {
+    const u = parseUnit(text)
+    expect(u.unit).toBe(canonical)
+    expect(u.quantity).toBe(quantity)
+    // the canonical spelling reads back as the same unit
+    expect(parseUnit(u.unit)).toMatchObject({ unit: canonical, quantity, factor: u.factor })
+  })
+
+  it('names an unnamed quantity by its dimension in SI base units', () => {
+    expect(quantityLabel('dim:kg·m/s³')).toBe('dimension kg·m/s³')
+    expect(siUnitOf('dim:kg·m/s³')).toBe('kg·m/s³')
+    expect(quantityLabel('stiffness')).toBe('stiffness')
+    expect(siUnitOf('resistance')).toBe('Ω')
+  })
+
+  it.each([
+    // entered, target: same dimension (or none shared), another quantity
+    ['J', 'mN·m', '"J" is an energy unit; this target is measured in torque (mN·m)'],
+    ['kJ', 'kN·m', 'this target is measured in torque'],
+    ['mN·m', 'Wh', '"mN·m" is a torque unit; this target is measured in energy (Wh)'],
+    ['kg m^2/s^2', 'N·m', '"kg m^2/s^2" is an energy unit'], // no force times a length: an energy
+    ['Hz', 'rev/s', '"Hz" is a frequency unit; this target is measured in angular speed'],
+    ['1/min', 'rpm', 'this target is measured in angular speed'],
+    ['rpm', 'kHz', '"rpm" is an angular speed unit; this target is measured in frequency'],
+    ['N/mm', 'N', '"N/mm" is a stiffness unit; this target is measured in force (N)'],
+    ['kΩ', 'S', '"kΩ" is a resistance unit; this target is measured in conductance (S)'],
+    ['N/s', 'W', '"N/s" is a unit of dimension kg·m/s³; this target is measured in power (W)'],
+    ['µF', 'mH', 'this target is measured in inductance'],
+    ['L', 'kg', '"L" is a volume unit; this target is measured in mass'],
+  ])('%s for a %s target is refused', (entered, target, message) => {
+    expect(() => assertSameQuantity(entered, target)).toThrow(message)
+    try {
+      assertSameQuantity(entered, target)
+    }
+    catch (e) {
+      expect((e as UnitError).code).toBe('dimension')
+    }
+  })
+
+  it('shows a conversion for the picker', () => {
+    // 1 lbf/in = 4.4482216152605 N / 25.4 mm = 0.17512683… N/mm (SP 811 definitions)
+    expect(conversionText('lbf/in', 'N/mm')).toBe('1 lbf/in = 0.175127 N/mm')
+    expect(conversionText('kohm', 'Ω')).toBe('1 kΩ = 1000 Ω')
+    expect(() => conversionText('kohm', 'F')).toThrow(UnitError)
+  })
+})
+
+describe('hostile unit text', () => {
+  // Only mathjs's unit parser sees the text: it reads names, prefixes, powers, * / and
+  // parentheses into a product of units. Nothing is evaluated, so no text can run code.
+  it.each([
+    ['x'.repeat(10_000), 'at most 30 characters'],
+    [`${'('.repeat(14)}m${')'.repeat(14)}x`, 'Unknown unit'],
+    ['1/0', 'Unknown unit'],
+    ['sin(m)', '"sin" is not a unit'],
+    ['import(m)', 'Unknown unit'],
+    ['evaluate(m)', 'Unknown unit'],
+    ['m; s', 'Unknown unit'],
+    ['[m]', 'Unknown unit'],
+    ['m = 1', 'Unknown unit'],
+    ['f(x) = x', 'Unknown unit'],
+    ['constructor', 'Unknown unit'],
+    ['__proto__', 'Unknown unit'],
+    ['toString', 'Unknown unit'],
+    ['5 m', 'a unit holds no number'],
+    ['m^1e308', 'Unknown unit'],
+    ['m^99', 'a power is a whole or half number'],
+    ['m^0.3', 'a power is a whole or half number'],
+    ['m\u0000', 'Unknown unit'],
+    ['"m"', 'Unknown unit'],
+    ['m + s', 'Unknown unit'],
+  ])('%j is refused: %s', (text, message) => {
+    expect(() => parseUnit(text)).toThrow(UnitError)
+    expect(() => parseUnit(text)).toThrow(message)
+  })
+
+  it('reads deeply nested parentheses within the length limit', () => {
+    expect(parseUnit(`${'('.repeat(14)}m${')'.repeat(14)}`).unit).toBe('m')
+  })
+
+  it('does not change the shared unit system when refusing text', () => {
+    const before = Object.keys(math.Unit.UNITS).length
+    for (const t of ['createUnit(x)', 'x = 1 m', 'm^2 = 3']) expect(() => parseUnit(t)).toThrow(UnitError)
+    expect(Object.keys(math.Unit.UNITS).length).toBe(before)
+  })
+})
+
+describe('stored units keep their meaning', () => {
+  // The canonical spellings and quantities of every unit accepted before units were opened;
+  // targets and readings store these, so each must read back as itself, of the same quantity.
+  it.each([
+    ['m/s', 'velocity'], ['km/h', 'velocity'], ['mph', 'velocity'], ['ft/s', 'velocity'], ['kg', 'mass'], ['g', 'mass'],
+    ['lb', 'mass'], ['oz', 'mass'], ['N', 'force'], ['kgf', 'force'], ['lbf', 'force'], ['ozf', 'force'],
+    ['N·m', 'torque'], ['N·cm', 'torque'], ['kgf·cm', 'torque'], ['lbf·ft', 'torque'], ['lbf·in', 'torque'],
+    ['ozf·in', 'torque'], ['A', 'current'], ['mA', 'current'], ['V', 'voltage'], ['mV', 'voltage'], ['kV', 'voltage'],
+    ['W', 'power'], ['kW', 'power'], ['hp', 'power'], ['J', 'energy'], ['kJ', 'energy'], ['Wh', 'energy'],
+    ['kWh', 'energy'], ['C', 'charge'], ['mAh', 'charge'], ['Ah', 'charge'], ['rpm', 'angularSpeed'],
+    ['rad/s', 'angularSpeed'], ['deg/s', 'angularSpeed'], ['m', 'length'], ['cm', 'length'], ['mm', 'length'],
+    ['km', 'length'], ['in', 'length'], ['ft', 'length'], ['s', 'time'], ['ms', 'time'], ['min', 'time'], ['h', 'time'],
+    ['deg', 'angle'], ['rad', 'angle'], ['Hz', 'frequency'], ['kHz', 'frequency'], ['°C', 'temperature'],
+    ['K', 'temperature'], ['°F', 'temperature'], ['Pa', 'pressure'], ['kPa', 'pressure'], ['MPa', 'pressure'],
+    ['bar', 'pressure'], ['psi', 'pressure'], ['m/s²', 'acceleration'], ['gn', 'acceleration'],
+    ['%', 'dimensionless'], ['count', 'dimensionless'],
+  ])('%s is still %s', (unit, quantity) => {
+    const u = parseUnit(unit)
+    expect(u.unit).toBe(unit)
+    expect(u.quantity).toBe(quantity)
+  })
+})
+
+describe('conversion text', () => {
+  it.each([
+    ['kWh', 'J', '1 kWh = 3.6e6 J'], // 1 kWh = 3.6 MJ (SP 811 B.8)
+    ['nF', 'F', '1 nF = 1e-9 F'],
+    ['mm', 'm', '0.001'],
+  ])('1 %s in %s reads "%s"', (from, to, text) => {
+    expect(conversionText(from, to)).toContain(text)
   })
 })

@@ -11,7 +11,6 @@ import { FREQUENCY_VALUES } from '../../../shared/utils/digestSchemas'
 import { FIX_STATES, LANES, SEVERITIES } from '../../../shared/utils/lanes'
 import { ROLES } from '../../../shared/utils/roles'
 import { COMPARATORS } from '../../../shared/utils/targetSchemas'
-import { QUANTITY_LABELS, type Quantity } from '../../../shared/utils/units'
 
 // The answers of the documented routes, as zod schemas so the API document is generated from
 // them (server/utils/api/document.ts). The checks at the bottom keep each one the same shape as
@@ -72,7 +71,7 @@ export const TargetOut = z.object({
   key: z.string(),
   name: z.string(),
   unit: described(z.string(), 'the display unit'),
-  quantity: z.enum(Object.keys(QUANTITY_LABELS) as [Quantity, ...Quantity[]]),
+  quantity: described(z.string(), 'a named quantity (torque, stiffness, resistance …) or dim: and its SI base units'),
   quantityLabel: z.string(),
   comparator: z.enum(COMPARATORS),
   threshold: z.number(),

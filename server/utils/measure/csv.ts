@@ -12,7 +12,7 @@ import { kindOf } from '../../../shared/utils/contentTypes'
 import { problemsMessage } from '../../../shared/utils/csvReadings'
 import { formatBytes } from '../../../shared/utils/fileNames'
 import type { CsvImportBody } from '../../../shared/utils/fileSchemas'
-import { SI_UNIT, diffFromSI, diffToSI, type Quantity } from '../../../shared/utils/units'
+import { diffFromSI, siUnitOf, diffToSI, type Quantity } from '../../../shared/utils/units'
 import type { BuildRow, FileRow } from '../../db/tables'
 import { recordAudit, type Actor } from '../audit'
 import type { Db } from '../db'
@@ -263,7 +263,7 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
         const r = byId.get(id)
         if (!r) continue
         const at = new Date(r.taken_at).toISOString()
-        r.values_entered.forEach((v, k) => lines.push([build.slug, r.key, r.label, r.id, k + 1, v, r.unit_entered, r.values_si[k], SI_UNIT[r.quantity], at, r.method]))
+        r.values_entered.forEach((v, k) => lines.push([build.slug, r.key, r.label, r.id, k + 1, v, r.unit_entered, r.values_si[k], siUnitOf(r.quantity), at, r.method]))
       }
       if (lines.length) yield `${unparse(lines)}\r\n`
     }

@@ -5,7 +5,7 @@ import type { TargetView } from '../../../shared/types/api'
 import { hazardOf } from '../../../shared/utils/caution'
 import { tidyNumber } from '../../../shared/utils/cellStats'
 import { targetRuleProblems, type TargetBody, type TargetPatch } from '../../../shared/utils/targetSchemas'
-import { QUANTITY_LABELS, UnitError, assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI, type UnitInfo } from '../../../shared/utils/units'
+import { UnitError, quantityLabel, assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI, type UnitInfo } from '../../../shared/utils/units'
 import type { TargetRow } from '../../db/tables'
 import type { Actor } from '../audit'
 import type { Db } from '../db'
@@ -36,11 +36,11 @@ export function unitOr422(text: string, field = 'unit'): UnitInfo {
   }
 }
 
-/** A UnitError as a 422 (other errors pass through). */
+/** A UnitError as a 400 for text that is no unit, a 422 for a unit of another quantity (other errors pass through). */
 export function unitProblem(e: unknown, field = 'unit') {
   if (!(e instanceof UnitError)) return e
-  const message = e.code === 'unknown' ? `${e.message}; GET /api/units lists the units Ratchet knows` : e.message
-  return createError({ statusCode: 422, message: `${field}: ${message}`, data: { fields: { [field]: message } } })
+  const message = e.code === 'unknown' ? `${e.message}. A unit is an expression such as N/mm, km/h, kΩ or W/(m·K)` : e.message
+  return createError({ statusCode: e.code === 'unknown' ? 400 : 422, message: `${field}: ${message}`, data: { fields: { [field]: message } } })
 }
 
 export function cellTargetOf(t: TargetRow): CellTarget {
@@ -59,7 +59,7 @@ export function targetView(t: TargetRow): TargetView {
     name: t.name,
     unit: t.unit,
     quantity: t.quantity,
-    quantityLabel: QUANTITY_LABELS[t.quantity],
+    quantityLabel: quantityLabel(t.quantity),
     comparator: t.comparator,
     threshold: tidyNumber(fromSI(t.threshold, unit)),
     thresholdHigh: orNull(t.threshold_high, v => fromSI(v, unit)),
