@@ -132,9 +132,8 @@ const isNone = (a: Dims) => sameDims(a, NONE)
 
 /** "power (W)", "torque (N·m) or energy (J)", or base units such as "kg·m/s³" when nothing matches. */
 function describe(dims: Dims): string {
+  // an angle is dimensionless here; quantities with one are named only when nothing else fits
   const names = quantitiesOfDims(dims, true)
-    // An angle is dimensionless here; name it only when nothing better fits.
-    .filter((q, _, all) => q !== 'angle' || all.length === 1)
   if (names.length > 0) return names.map(q => `${QUANTITY_LABELS[q]} (${SI_UNIT[q]})`).join(' or ')
   return baseUnitsOf(dims, false)
 }

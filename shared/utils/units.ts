@@ -179,11 +179,18 @@ export function quantityWords(quantity: Quantity): string {
   return NAMED.get(quantity)?.words ?? ''
 }
 
-/** Named quantities whose dimension is `dims` (torque and energy both for N·m = J). */
+/**
+ * Named quantities whose dimension is `dims` (torque and energy both for N·m = J). With
+ * `ignoreAngle`, angles count as dimensionless, and a quantity with an angle in it (angular
+ * speed, torsional stiffness) is named only when no quantity without one fits.
+ */
 export function quantitiesOfDims(dims: readonly number[], ignoreAngle = false): string[] {
-  const strip = (d: readonly number[]) => (ignoreAngle && ANGLE >= 0 ? d.map((x, i) => (i === ANGLE ? 0 : x)) : d)
+  if (!ignoreAngle || ANGLE < 0) return [...NAMED.values()].filter(q => sameDims(q.dims, dims)).map(q => q.key)
+  const strip = (d: readonly number[]) => d.map((x, i) => (i === ANGLE ? 0 : x))
   const want = strip(dims)
-  return [...NAMED.values()].filter(q => sameDims(strip(q.dims), want)).map(q => q.key)
+  const fits = [...NAMED.values()].filter(q => sameDims(strip(q.dims), want))
+  const plain = fits.filter(q => q.dims[ANGLE] === 0)
+  return (plain.length > 0 ? plain : fits).map(q => q.key)
 }
 
 // ---------------------------------------------------------------------------------------

@@ -101,13 +101,13 @@ describe('CSV import and export', () => {
 
   it('names every problem line: units of another quantity, unknown units, bad times, quotes left open', async () => {
     const { key, r1 } = await fixture()
-    const csv = 'torque,unit,time\n41,N·m,2026-03-14T10:00:00Z\n42,V,2026-03-14T10:00:01Z\n43,stone,2026-03-14T10:00:02Z\n44,N·m,noon\n"45,N·m,2026-03-14T10:00:04Z\n'
+    const csv = 'torque,unit,time\n41,N·m,2026-03-14T10:00:00Z\n42,V,2026-03-14T10:00:01Z\n43,zorkmid,2026-03-14T10:00:02Z\n44,N·m,noon\n"45,N·m,2026-03-14T10:00:04Z\n'
     const f = await uploadOk(w.engineer.client, b(), 'messy.csv', csv)
     const res = await expectRefused(w.build.id, 422, () => importCsv({ file: f.id, target: key, revision: r1, valueColumn: 'torque', unitColumn: 'unit', timeColumn: 'time' }))
     const lines = res.body.data.problems.map((p: { line: number }) => p.line)
     expect(lines.slice(0, 3)).toEqual([3, 4, 5])
-    expect(res.body.data.problems[0].message).toBe('Line 3: unit "V" is a voltage unit; this target is measured in torque')
-    expect(res.body.data.problems[1].message).toBe('Line 4: unit "stone" is not a unit Ratchet knows')
+    expect(res.body.data.problems[0].message).toBe('Line 3: unit "V" is a voltage unit; this target is measured in torque (N·m)')
+    expect(res.body.data.problems[1].message).toBe('Line 4: unit "zorkmid" is not a unit Ratchet knows')
     expect(res.body.data.problems[2].message).toMatch(/^Line 5: "noon" in column "time" is not a date and time/)
     expect(res.body.data.problems.some((p: { message: string }) => p.message === 'Line 6: a quoted field is not closed')).toBe(true)
   })

@@ -42,7 +42,7 @@ describe('open units through the API', () => {
   it('takes a reading in another spelling of the same quantity and converts it by the definitions', async () => {
     const t = await newTarget(w.engineer.client, w.build.slug, { unit: 'N/mm', threshold: 150 })
     const r = await addReading(w.engineer.client, w.build.slug, { revision, target: t.key, values: [1000, 1010], unit: 'lbf/in', resolution: 1 })
-    const row = await testDb()('readings').where({ id: r.id }).first()
+    const row = await testDb()('readings').where({ id: r.reading.id }).first()
     expect(row.unit_entered).toBe('lbf/in')
     // 1 lbf/in = 4.4482216152605 N / 0.0254 m = 175.126835… N/m
     expectRelClose(row.values_si[0], 1000 * LBF / INCH)
