@@ -109,8 +109,10 @@ export const RevisionOut = z.object({
   createdAt: z.string(),
 })
 
+const readingKind = described(z.enum(['samples', 'stated']), '`samples`: values measured here; `stated`: one result with its own standard uncertainty u (and ν)')
+
 export const ReadingCreatedOut = z.object({
-  reading: z.object({ id: z.string(), ...statsShape, unit: z.string(), status: measuredStatus }),
+  reading: z.object({ id: z.string(), kind: readingKind, ...statsShape, unit: z.string(), status: measuredStatus }),
   pooled: described(
     z.object({ ...statsShape, readings: z.int(), status: measuredStatus }).nullable(),
     'the pooled statistics of all readings of the target on the revision, when there is more than one',
@@ -120,6 +122,7 @@ export const ReadingCreatedOut = z.object({
 export const HistoryEntryOut = z.object({
   revision: z.string(),
   readings: described(z.int(), 'readings pooled'),
+  stated: described(z.int(), 'how many of them are stated results; with any, the cell combines the results by inverse-variance weighting (sd, uA, uB are null)'),
   ...statsShape,
   status: measuredStatus,
   delta: nullableNumber('mean − the previous revision’s mean; null on the first'),
@@ -180,6 +183,7 @@ export const TargetOrderOut = z.object({ keys: described(z.array(z.string()), 't
 
 export const ReadingDetailOut = z.object({
   id: z.string(),
+  kind: readingKind,
   revision: z.string(),
   n: described(z.int(), 'number of samples'),
   stats: described(z.object(statsShape), 'the statistics of this reading alone, in the display unit'),
@@ -190,6 +194,9 @@ export const ReadingDetailOut = z.object({
   method: z.string(),
   resolutionEntered: z.number().nullable(),
   resolution: nullableNumber('in the display unit'),
+  uEntered: nullableNumber('a stated result’s standard uncertainty as entered, in unitEntered; null for samples'),
+  u: nullableNumber('the same in the display unit'),
+  dof: nullableNumber('a stated result’s degrees of freedom; null: infinite (or a samples reading)'),
   takenAt: z.string(),
   by: described(z.string().nullable(), 'who recorded it (a person’s name, or the rig token’s label)'),
   rig: described(z.boolean(), 'recorded with a rig token'),
