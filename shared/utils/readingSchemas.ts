@@ -67,18 +67,12 @@ export const StatedReadingBody = z.object({
 const has = (input: unknown, key: string) => typeof input === 'object' && input !== null && (input as Record<string, unknown>)[key] !== undefined
 
 /**
- * Either body. When neither fits, the message is the chosen kind's first problem: a body with
- * `value` and no `values` is read as a stated result, one with `values` and no `value` as samples.
+ * Either body. When neither fits, forms and the API report the problems of the kind the body was
+ * meant as (accountSchemas.fieldErrors: a body with `value` is a stated result, one without it
+ * samples); a body with both `values` and `value` gets one message saying so.
  */
 export const ReadingBody = z.union([SamplesReadingBody, StatedReadingBody], {
-  error: (iss) => {
-    if (iss.code !== 'invalid_union') return undefined
-    const [values, value] = [has(iss.input, 'values'), has(iss.input, 'value')]
-    if (values && value) return EITHER
-    if (!values && !value) return NEITHER
-    const first = iss.errors[values ? 0 : 1]?.[0]
-    return first ? `${first.path.join('.')}: ${first.message}` : EITHER
-  },
+  error: iss => (iss.code === 'invalid_union' ? (has(iss.input, 'values') && has(iss.input, 'value') ? EITHER : NEITHER) : undefined),
 })
 
 export type ReadingInput = z.output<typeof ReadingBody>

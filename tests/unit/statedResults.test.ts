@@ -1,6 +1,7 @@
 import jStat from 'jstat'
 import { all, create } from 'mathjs'
 import { describe, expect, it } from 'vitest'
+import { fieldErrors } from '../../shared/utils/accountSchemas'
 import { decideCells, poolCell, type SiRule } from '../../shared/utils/cellStats'
 import { movementOf } from '../../shared/utils/conformance'
 import { ReadingBody, isStatedBody } from '../../shared/utils/readingSchemas'
@@ -196,16 +197,18 @@ describe('the reading body', () => {
   })
 
   it('refuses both kinds at once, u < 0, u not a number and dof ≤ 0, with a message naming the field', () => {
-    const message = (x: unknown) => {
+    const errors = (x: unknown) => {
       const r = ReadingBody.safeParse(x)
       expect(r.success).toBe(false)
-      return r.error!.issues[0]!.message
+      return fieldErrors(r.error!)
     }
-    expect(message({ ...base, values: [1], value: 1, u: 1 })).toMatch(/either values .* or value with u .* not both/)
-    expect(message({ ...base, value: 1, u: -1 })).toMatch(/u is 0 or more/)
-    expect(message({ ...base, value: 1, u: '0.1' })).toMatch(/^u: .*finite number/)
-    expect(message({ ...base, value: 1 })).toMatch(/^u: /)
-    expect(message({ ...base, value: 1, u: 1, dof: 0 })).toMatch(/more than 0/)
-    expect(message({ ...base })).toMatch(/Give values .* or value with u/)
+    expect(errors({ ...base, values: [1], value: 1, u: 1 })._).toMatch(/either values .* or value with u .* not both/)
+    expect(errors({ ...base, value: 1, u: -1 }).u).toMatch(/u is 0 or more/)
+    expect(errors({ ...base, value: 1, u: '0.1' }).u).toMatch(/finite number/)
+    expect(errors({ ...base, value: 1 }).u).toMatch(/finite number/)
+    expect(errors({ ...base, value: 1, u: 1, dof: 0 }).dof).toMatch(/more than 0/)
+    // samples keep their field paths (API v1 answers name values.1 as before)
+    expect(errors({ ...base, values: [1, 'x'] })).toEqual({ 'values.1': expect.stringMatching(/finite number/) })
+    expect(Object.keys(errors({ ...base }))).toEqual(['values'])
   })
 })
