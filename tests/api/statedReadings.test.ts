@@ -1,5 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import Papa from 'papaparse'
 import { closeTestDb, makeWorld, testDb, type World } from '../support/api'
+import { uploadOk } from '../support/files'
 import { addReading, expectRefused, expectRelClose, newRevision, newTarget, uniqueKey } from '../support/measure'
 
 // Critical values of Student's t, upper tail 0.025: NIST/SEMATECH e-Handbook of Statistical
@@ -143,5 +145,75 @@ describe('readings with a stated uncertainty', () => {
     expect(compare.status).toBe(200)
     expect(compare.body.targets[0]).toMatchObject({ reason: 'welch', real: false })
     expect(compare.body.targets[0].p).toBeCloseTo(r3.p, 12)
+  })
+
+  describe('CSV', () => {
+    it('imports rows with a u as stated results (dof blank: infinite) beside sample rows', async () => {
+      const c = await cell({ unit: 'N', comparator: 'atLeast', threshold: 10 })
+      const csv = ['value,unit,u,dof', '10.4,N,,', '10.6,N,,', '10.5,N,,', '1052,cN,3,5', '10.45,N,0.05,'].join('\n')
+      const f = await uploadOk(w.engineer.client, w.build.slug, 'mixed.csv', csv)
+      const preview = await w.engineer.client.get(`/api/v1/builds/${w.build.slug}/import/preview?file=${f.id}`)
+      expect(preview.body.guess).toMatchObject({ value: 'value', unit: 'unit', u: 'u', dof: 'dof' })
+      const res = await w.engineer.client.post(`/api/v1/builds/${w.build.slug}/import`, { file: f.id, target: c.key, revision: c.label, valueColumn: 'value', unitColumn: 'unit', uColumn: 'u', dofColumn: 'dof' })
+      expect(res.status, JSON.stringify(res.body)).toBe(201)
+      const readings = res.body.readings as { n: number, unitEntered: string, firstLine: number, reading: { kind: string, nuEff: number | null, u: number, ci95: [number, number], mean: number } }[]
+      expect(readings.map(r => [r.reading.kind, r.n, r.unitEntered, r.firstLine])).toEqual([['samples', 3, 'N', 2], ['stated', 1, 'cN', 5], ['stated', 1, 'N', 6]])
+      const [, cN, exact] = readings
+      // 1052 cN ± 3 cN with ν = 5: t(0.975, 5) = 2.571 (e-Handbook 1.3.6.7.2)
+      expectRelClose(cN!.reading.mean, 10.52)
+      expectRelClose(cN!.reading.u, 0.03)
+      expect(cN!.reading.nuEff).toBe(5)
+      expect(Math.abs((cN!.reading.ci95[1] - cN!.reading.mean) / cN!.reading.u - 2.571)).toBeLessThanOrEqual(0.0005)
+      expect(exact!.reading.nuEff).toBeNull()
+      const rows = await testDb()('readings').where({ target_id: c.id }).orderBy('stated_u_entered')
+      expect(rows.map(r => [r.stated_u_entered, r.stated_dof])).toEqual([[0.05, null], [3, 5], [null, null]])
+      const cellNow = await cellRow(c.id, c.revisionId)
+      expect(cellNow).toMatchObject({ readings: 3, stated: 2, n: 5 })
+    })
+
+    it('refuses a u below 0, a dof of 0, and a dof without u, naming the lines', async () => {
+      const c = await cell({ unit: 'N' })
+      const csv = ['value,u,dof', '10,-1,', '11,0.1,0', '12,,4'].join('\n')
+      const f = await uploadOk(w.engineer.client, w.build.slug, 'bad-u.csv', csv)
+      const res = await expectRefused(w.build.id, 422, () => w.engineer.client.post(`/api/v1/builds/${w.build.slug}/import`, { file: f.id, target: c.key, revision: c.label, valueColumn: 'value', unit: 'N', uColumn: 'u', dofColumn: 'dof' }))
+      expect(res.body.data.problems.map((p: { line: number }) => p.line)).toEqual([2, 3, 4])
+      expect(res.body.data.problems[0].message).toMatch(/standard uncertainty/)
+      const noU = await w.engineer.client.post(`/api/v1/builds/${w.build.slug}/import`, { file: f.id, target: c.key, revision: c.label, valueColumn: 'value', unit: 'N', dofColumn: 'dof' })
+      expect(noU.status).toBe(400)
+      expect(noU.body.message).toMatch(/dofColumn: .*goes with a standard uncertainty/)
+    })
+
+    it('round trip: the export carries kind, u and dof, and importing it gives the same readings', async () => {
+      const src = await makeWorld()
+      const t = await newTarget(src.owner.client, src.build.slug, { key: 'arm_mass', unit: 'kg', comparator: 'atMost', threshold: 2 })
+      await newRevision(src.owner.client, src.build.slug, 'R1')
+      await addReading(src.engineer.client, src.build.slug, { revision: 'R1', target: t.key, values: [1510, 1512], unit: 'g' })
+      await addReading(src.engineer.client, src.build.slug, { revision: 'R1', target: t.key, value: 1.5112, u: 0.0004, dof: 9, unit: 'kg' })
+      await addReading(src.engineer.client, src.build.slug, { revision: 'R1', target: t.key, value: 1511.5, u: 0.2, unit: 'g' })
+      const exported = await src.reviewer.client.get(`/api/v1/builds/${src.build.slug}/export/readings.csv`)
+      const parsed = Papa.parse<string[]>(exported.body.trim()).data
+      const head = parsed[0]!
+      const col = (row: string[], name: string) => row[head.indexOf(name)]
+      expect(parsed.slice(1).map(r => [col(r, 'kind'), col(r, 'value'), col(r, 'unit'), col(r, 'u'), col(r, 'dof')])).toEqual([
+        ['samples', '1510', 'g', '', ''],
+        ['samples', '1512', 'g', '', ''],
+        ['stated', '1.5112', 'kg', '0.0004', '9'],
+        ['stated', '1511.5', 'g', '0.2', ''],
+      ])
+      expect(Number(col(parsed[3]!, 'u_si'))).toBeCloseTo(0.0004, 15)
+
+      // into another build with the same target and revision
+      const t2 = await newTarget(w.owner.client, w.build.slug, { unit: 'kg', comparator: 'atMost', threshold: 2 })
+      const r2 = await newRevision(w.owner.client, w.build.slug, uniqueKey('R'))
+      const f = await uploadOk(w.engineer.client, w.build.slug, 'export.csv', exported.body)
+      const res = await w.engineer.client.post(`/api/v1/builds/${w.build.slug}/import`, { file: f.id, target: t2.key, revision: r2.label, valueColumn: 'value', unitColumn: 'unit', uColumn: 'u', dofColumn: 'dof', timeColumn: 'taken_at' })
+      expect(res.status, JSON.stringify(res.body)).toBe(201)
+      const before = await testDb()('cell_stats').where({ target_id: t.id }).first()
+      const after = await testDb()('cell_stats').where({ target_id: t2.id, revision_id: r2.id }).first()
+      expect(before).toMatchObject({ readings: 3, stated: 2, n: 4, sd: null })
+      expect(after).toMatchObject({ readings: 3, stated: 2, n: 4, sd: null, status: before.status })
+      // the same numbers up to the order of summation (the readings of a cell are not ordered)
+      for (const k of ['mean', 'u', 'nu_eff', 'ci_low', 'ci_high']) expectRelClose(after[k], before[k], 1e-12)
+    })
   })
 })

@@ -397,8 +397,8 @@ export const CsvPreviewOut = z.object({
   rows: described(z.array(z.object({ line: z.int(), cells: z.array(z.string()) })), 'the first rows, as text'),
   totalRows: z.int(),
   guess: described(
-    z.object({ value: z.string().nullable(), unit: z.string().nullable(), time: z.string().nullable(), revision: z.string().nullable() }),
-    'the columns that look like values, units, times and revisions',
+    z.object({ value: z.string().nullable(), unit: z.string().nullable(), time: z.string().nullable(), revision: z.string().nullable(), u: z.string().nullable(), dof: z.string().nullable() }),
+    'the columns that look like values, units, times and revisions, and like standard uncertainties and degrees of freedom (stated results)',
   ),
   problem: described(z.string().nullable(), 'set when the file can’t be imported as it is (too large, not text)'),
 })
