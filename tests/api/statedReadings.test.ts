@@ -149,17 +149,17 @@ describe('readings with a stated uncertainty', () => {
 
   describe('CSV', () => {
     it('imports rows with a u as stated results (dof blank: infinite) beside sample rows', async () => {
-      const c = await cell({ unit: 'N', comparator: 'atLeast', threshold: 10 })
-      const csv = ['value,unit,u,dof', '10.4,N,,', '10.6,N,,', '10.5,N,,', '1052,cN,3,5', '10.45,N,0.05,'].join('\n')
+      const c = await cell({ unit: 'm', comparator: 'atLeast', threshold: 10 })
+      const csv = ['value,unit,u,dof', '10.4,m,,', '10.6,m,,', '10.5,m,,', '1052,cm,3,5', '10.45,m,0.05,'].join('\n')
       const f = await uploadOk(w.engineer.client, w.build.slug, 'mixed.csv', csv)
       const preview = await w.engineer.client.get(`/api/v1/builds/${w.build.slug}/import/preview?file=${f.id}`)
       expect(preview.body.guess).toMatchObject({ value: 'value', unit: 'unit', u: 'u', dof: 'dof' })
       const res = await w.engineer.client.post(`/api/v1/builds/${w.build.slug}/import`, { file: f.id, target: c.key, revision: c.label, valueColumn: 'value', unitColumn: 'unit', uColumn: 'u', dofColumn: 'dof' })
       expect(res.status, JSON.stringify(res.body)).toBe(201)
       const readings = res.body.readings as { n: number, unitEntered: string, firstLine: number, reading: { kind: string, nuEff: number | null, u: number, ci95: [number, number], mean: number } }[]
-      expect(readings.map(r => [r.reading.kind, r.n, r.unitEntered, r.firstLine])).toEqual([['samples', 3, 'N', 2], ['stated', 1, 'cN', 5], ['stated', 1, 'N', 6]])
+      expect(readings.map(r => [r.reading.kind, r.n, r.unitEntered, r.firstLine])).toEqual([['samples', 3, 'm', 2], ['stated', 1, 'cm', 5], ['stated', 1, 'm', 6]])
       const [, cN, exact] = readings
-      // 1052 cN ± 3 cN with ν = 5: t(0.975, 5) = 2.571 (e-Handbook 1.3.6.7.2)
+      // 1052 cm ± 3 cm with ν = 5 (1 cm = 0.01 m exactly): t(0.975, 5) = 2.571 (e-Handbook 1.3.6.7.2)
       expectRelClose(cN!.reading.mean, 10.52)
       expectRelClose(cN!.reading.u, 0.03)
       expect(cN!.reading.nuEff).toBe(5)

@@ -217,10 +217,10 @@ export async function importCsv(db: Db, actor: Actor, input: { build: Pick<Build
       const created = g.stated
         ? await insertReading(trx, actor, { buildId: build.id, body: { ...common, value: g.values[0]!, u: g.stated.u, dof: g.stated.dof } })
         : await insertReading(trx, actor, { buildId: build.id, body: {
-          ...common,
-          values: g.values,
-          resolution: body.resolution ? diffFromSI(diffToSI(body.resolution, resolutionUnit), g.unit) : null,
-        } })
+            ...common,
+            values: g.values,
+            resolution: body.resolution ? diffFromSI(diffToSI(body.resolution, resolutionUnit), g.unit) : null,
+          } })
       out.push({ ...created, revision: g.revision, unitEntered: g.unit, n: g.values.length, firstLine: g.firstLine, lastLine: g.lastLine })
     }
     const first = (await trx('readings').where({ id: out[0]!.reading.id }).first('revision_id'))!
