@@ -83,6 +83,12 @@ describe('readings with a stated uncertainty', () => {
       await expectRefused(w.build.id, 400, () => post({ revision: c.label, target: c.key, value: 1, u: 1e306, unit: 'km' }), /u: .*too large/)
       await expectRefused(w.build.id, 422, () => post({ revision: c.label, target: c.key, value: 1, u: 0.1, unit: 's' }))
     })
+
+    it('422 naming the value when the cell’s weighted mean would overflow double precision', async () => {
+      const c = await cell({ unit: 'N' })
+      await addReading(w.engineer.client, w.build.slug, { revision: c.label, target: c.key, value: 1.7e308, u: 1, unit: 'N' })
+      await expectRefused(w.build.id, 422, () => post({ revision: c.label, target: c.key, value: -1.7e308, u: 1, unit: 'N' }), /^value: .*double precision/)
+    })
   })
 
   it('pools with sample readings by inverse-variance weighting, visible in the scoreboard; a delete re-pools', async () => {

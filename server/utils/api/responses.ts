@@ -44,7 +44,7 @@ const targetStatus = z.enum(['met', 'marginal', 'short', 'untested'])
 const movementReason = z.enum(['welch', 'noise-band', 'uncertainty', 'not-enough-data'])
 const movementShape = {
   delta: nullableNumber('mean − the other revision’s mean; null when a side has no value'),
-  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2'),
+  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2 (or either holds a stated result: the test on both sides’ u and ν_eff)'),
   movement: z.enum(['gained', 'slipped', 'steady']).nullable(),
   real: z.boolean().nullable(),
   reason: described(movementReason.nullable(), 'the rule that decided'),
@@ -126,7 +126,7 @@ export const HistoryEntryOut = z.object({
   ...statsShape,
   status: measuredStatus,
   delta: nullableNumber('mean − the previous revision’s mean; null on the first'),
-  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2'),
+  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2 (or either holds a stated result: the test on both sides’ u and ν_eff)'),
   movement: z.enum(['gained', 'slipped', 'steady']).nullable(),
   real: z.boolean().nullable(),
   reason: described(

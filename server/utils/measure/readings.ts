@@ -14,18 +14,18 @@ import { cellOfRow, refreshCell, statsColumns } from './statsCache'
 import { trackTargetEvents } from './targetEvents'
 import { cellTargetOf, findTarget, unitProblem } from './targets'
 
-// Readings: the samples of one target on one revision. Plain Knex with the connection passed
+// Readings: the samples (or one stated result, value ± u) of one target on one revision. Plain Knex with the connection passed
 // in (the seed uses it too). Each write re-pools the cell and re-decides the target in the same
 // transaction, holding the target's row lock, so the cached statistics never disagree.
 
-/** Statistics that overflow double precision (the reading's, its cell's, a movement's) as a 422 naming the values. */
-async function statsOr422<T>(work: () => Promise<T>): Promise<T> {
+/** Statistics that overflow double precision (the reading's, its cell's, a movement's) as a 422 naming the values (or a stated value). */
+async function statsOr422<T>(work: () => Promise<T>, field = 'values'): Promise<T> {
   try {
     return await work()
   }
   catch (e) {
     if (!(e instanceof StatsOverflowError)) throw e
-    throw createError({ statusCode: 422, message: `values: ${e.message}`, data: { fields: { values: 'Statistics overflow' } } })
+    throw createError({ statusCode: 422, message: `${field}: ${e.message}`, data: { fields: { [field]: 'Statistics overflow' } } })
   }
 }
 
@@ -39,7 +39,7 @@ function tooLarge(field = 'values'): never {
  * MAX_SAMPLES values, 422 for a unit of another quantity or statistics that overflow.
  */
 export async function insertReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
-  return await statsOr422(() => recordReading(trx, actor, input))
+  return await statsOr422(() => recordReading(trx, actor, input), isStatedBody(input.body) ? 'value' : 'values')
 }
 
 async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
