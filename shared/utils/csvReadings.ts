@@ -66,6 +66,9 @@ export interface CsvPlan {
 
 export const MAX_PROBLEMS = 20
 
+/** Stated results one file may hold: each is a reading of its own, and every reading re-pools its cell. */
+export const MAX_STATED_ROWS = 1000
+
 const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/
 const COMMA_NUMBER = /^[+-]?\d+,\d+([eE][+-]?\d+)?$/
 
@@ -163,6 +166,7 @@ export function planCsvImport(header: string[], rows: CsvRow[], columns: CsvColu
   if (problemCount > 0 || index.value === null) return { groups: [], rows: rows.length, problems, problemCount }
 
   const groups = new Map<string, CsvGroup>()
+  let statedRows = 0
   const cell = (r: CsvRow, i: number | null) => (i === null ? '' : (r.cells[i] ?? '').trim())
   for (const r of rows) {
     const raw = cell(r, index.value)
@@ -222,6 +226,10 @@ export function planCsvImport(header: string[], rows: CsvRow[], columns: CsvColu
 
     if (value === null || unit === null || !revision || (index.time !== null && takenAt === null) || statedBad) continue
     if (stated) {
+      if (++statedRows > MAX_STATED_ROWS) {
+        problem(r.line, `Line ${r.line}: a file holds at most ${MAX_STATED_ROWS.toLocaleString('en')} stated results (rows with a u); split the file`)
+        continue
+      }
       // each stated result is a reading of its own
       groups.set(`line\u0000${r.line}`, { revision, unit, values: [value], takenAt, firstLine: r.line, lastLine: r.line, stated })
       continue

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvRow } from '../../shared/utils/csvReadings'
+import { MAX_STATED_ROWS, parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvRow } from '../../shared/utils/csvReadings'
 
 const rows = (...lines: string[][]): CsvRow[] => lines.map((cells, i) => ({ line: i + 2, cells }))
 
@@ -120,5 +120,13 @@ describe('planCsvImport with stated results (u and dof columns)', () => {
   it('a dof column needs a u column; a u column the header lacks is named', () => {
     expect(planCsvImport(header, rows(['1', '', '']), { value: 'value', dof: 'dof' }, defaults).problems[0]!.message).toMatch(/degrees-of-freedom column goes with/)
     expect(planCsvImport(header, rows(['1', '', '']), { value: 'value', u: 'sigma' }, defaults).problems[0]!.message).toBe('The header has no column "sigma" (the standard uncertainty column)')
+  })
+
+  it(`takes at most ${MAX_STATED_ROWS} stated results per file (each is a reading of its own)`, () => {
+    const many = Array.from({ length: MAX_STATED_ROWS + 1 }, (_, i) => [String(10 + i / 1000), '0.1', ''])
+    const plan = planCsvImport(header, rows(...many), columns, defaults)
+    expect(plan.groups).toEqual([])
+    expect(plan.problems).toEqual([{ line: MAX_STATED_ROWS + 2, message: `Line ${MAX_STATED_ROWS + 2}: a file holds at most 1,000 stated results (rows with a u); split the file` }])
+    expect(planCsvImport(header, rows(...many.slice(1)), columns, defaults).groups).toHaveLength(MAX_STATED_ROWS)
   })
 })
