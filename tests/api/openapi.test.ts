@@ -82,7 +82,7 @@ function disagreements(doc: Doc, route: ApiRoute): string[] {
     const bodies = alternatives(body)
     if (wants.length !== bodies.length) out.push(`the document has ${bodies.length} body alternatives, the schema ${wants.length}`)
     wants.forEach((want, i) => {
-      const got = bodies[i] ?? {}
+      const got: Partial<ObjectSchema> = bodies[i] ?? {}
       const at = wants.length > 1 ? `alternative ${i + 1}, ` : ''
       for (const field of new Set([...Object.keys(want.properties), ...Object.keys(got.properties ?? {})])) {
         if (route.form && field === 'file') continue

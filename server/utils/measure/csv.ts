@@ -140,7 +140,7 @@ export async function previewCsv(db: Db, buildId: string, fileId: string): Promi
     }
     catch (err) {
       if ((err as { statusCode?: number }).statusCode !== 422) throw err
-      return { ...base, delimiter: ',', headerLine: 1, columns: [], rows: [], totalRows: 0, guess: { value: null, unit: null, time: null, revision: null }, problem: (err as Error).message }
+      return { ...base, delimiter: ',', headerLine: 1, columns: [], rows: [], totalRows: 0, guess: { value: null, unit: null, time: null, revision: null, u: null, dof: null }, problem: (err as Error).message }
     }
     return { ...base, ...await inWorker<CsvPreviewParsed>({ kind: 'preview', bytes }) }
   }

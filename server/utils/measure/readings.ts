@@ -65,7 +65,8 @@ async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' 
   // the readings of a cell are pooled into one sample set, which holds at most MAX_SAMPLES values
   const held = (await trx('readings').where({ target_id: target.id, revision_id: revision.id }).sum({ n: 'n' }).first())?.n ?? 0
   const stated = isStatedBody(body) ? body : null
-  const entered = stated ? [stated.value] : body.values!
+  const samples = isStatedBody(body) ? null : body
+  const entered = stated ? [stated.value] : samples!.values
   if (Number(held) + entered.length > MAX_SAMPLES) {
     throw createError({
       statusCode: 409,
@@ -74,7 +75,7 @@ async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' 
     })
   }
   const valuesSI = entered.map(v => toSI(v, units.entered))
-  const resolution = stated ? null : (body.resolution ?? null)
+  const resolution = samples?.resolution ?? null
   const resolutionSI = resolution ? diffToSI(resolution, units.entered) : null
   if (!valuesSI.every(Number.isFinite) || (resolutionSI !== null && !Number.isFinite(resolutionSI))) tooLarge(stated ? 'value' : 'values')
   // a stated u is a difference: it converts with the unit's factor only (no offset)
