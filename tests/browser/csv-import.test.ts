@@ -1,7 +1,7 @@
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { mustSucceed, type World } from '../support/api'
-import { goto, launchWithWorld, signedInPage } from '../support/browser'
+import { goto, launchWithWorld, screenshot, signedInPage } from '../support/browser'
 import { uploadOk } from '../support/files'
 
 // The CSV import's target picker offers only measured targets: a derived one is computed from its
@@ -24,7 +24,7 @@ describe('the CSV import in Chromium', () => {
   beforeAll(async () => { ({ browser, w } = await launchWithWorld(arrange)) })
   afterAll(async () => { await browser?.close() })
 
-  it('leaves derived targets out of its target picker and imports into the first measured one', async () => {
+  it('leaves derived targets out of its target picker, takes a typed unit, and imports into the first measured one', async () => {
     const { context, page } = await signedInPage(browser, w.engineer)
     await goto(page, `/builds/${w.build.slug}?tab=files`)
     // the strip has the derived target first
@@ -39,7 +39,16 @@ describe('the CSV import in Chromium', () => {
     expect(await picker.locator('option').evaluateAll(els => els.map(el => (el as HTMLOptionElement).value))).toEqual(['wheel_torque', 'wheel_speed'])
     expect(await picker.inputValue()).toBe('wheel_torque')
 
-    await wizard.getByTestId('csv-unit').selectOption('N·m')
+    // the unit field takes any typed spelling, and says so when it is of another quantity
+    const unit = wizard.getByTestId('csv-unit')
+    expect(await unit.inputValue()).toBe('N·m')
+    await unit.fill('rpm')
+    await expect.poll(() => wizard.getByTestId('unit-hint').innerText()).toMatch(/torque \(N·m\)/)
+    await unit.fill('N m')
+    // the spaced form is read as the target's own unit: the hint names torque, no complaint
+    await expect.poll(() => wizard.getByTestId('unit-hint').innerText()).not.toMatch(/measured in/)
+    expect(await wizard.getByTestId('unit-hint').innerText()).toMatch(/torque/)
+    await screenshot(page, 'csv-import-columns')
     await wizard.getByTestId('csv-revision').selectOption('R1')
     await wizard.getByTestId('csv-commit').click()
     await wizard.getByTestId('csv-result').waitFor()

@@ -83,7 +83,8 @@ describe('files in Chromium', () => {
     await page.locator('[data-testid="file-list"] li', { hasText: 'torque.csv' }).waitFor()
     const image = page.locator('[data-testid="file-list"] li', { hasText: 'torque arm.png' })
     await image.getByTestId('file-thumbnail').waitFor()
-    expect(await image.getByTestId('file-thumbnail').evaluate(img => (img as HTMLImageElement).naturalWidth)).toBe(1)
+    // the thumbnail is fetched after the row shows: wait until it has decoded
+    await expect.poll(() => image.getByTestId('file-thumbnail').evaluate(img => (img as HTMLImageElement).naturalWidth)).toBe(1)
     await screenshot(page, 'files-tab')
 
     // the CSV becomes a reading through the wizard, and its statistics show
@@ -91,7 +92,7 @@ describe('files in Chromium', () => {
     const wizard = page.getByTestId('csv-wizard')
     await wizard.getByTestId('csv-preview').waitFor()
     expect(await wizard.getByTestId('csv-value-column').inputValue()).toBe('torque')
-    await wizard.getByTestId('csv-unit').selectOption('N·m')
+    await wizard.getByTestId('csv-unit').fill('N·m')
     await wizard.getByTestId('csv-revision').selectOption('R1')
     await wizard.getByTestId('csv-commit').click()
     await wizard.getByTestId('csv-result').waitFor()
