@@ -54,8 +54,11 @@ step "PostgreSQL (test cluster on 127.0.0.1:$RATCHET_PGPORT)"
 bash scripts/db.sh start
 bash scripts/db.sh reset ratchet_test
 bash scripts/db.sh reset ratchet_scratch
+bash scripts/db.sh reset ratchet_restore
 export DATABASE_URL="$(bash scripts/db.sh url ratchet_test)"
 export RATCHET_SCRATCH_DATABASE_URL="$(bash scripts/db.sh url ratchet_scratch)"
+# an empty database for the backup test to restore into
+export RATCHET_RESTORE_DATABASE_URL="$(bash scripts/db.sh url ratchet_restore)"
 npx tsx scripts/migrate.ts latest
 
 if [ "${RATCHET_TEST_QUICK:-0}" = 1 ] && [ -f .output/server/index.mjs ]; then
