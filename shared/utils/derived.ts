@@ -203,8 +203,9 @@ function symbolsOf(node: MathNode): string[] {
   return [...found]
 }
 
-/** The dimension of a display unit, as a FormulaError when the unit is not known. */
+/** The dimension of a display unit, as a FormulaError when the unit is not known; '' is dimensionless. */
 function dimsOfTarget(unit: string, whose: string): Dims {
+  if (unit === '') return NONE
   try {
     return dimsOfUnit(unit)
   }
@@ -214,27 +215,46 @@ function dimsOfTarget(unit: string, whose: string): Dims {
   }
 }
 
-function checkParsed(parsed: Parsed, inputs: Record<string, { unit: string }>, resultUnit: string): void {
+/** How messages name a formula and its inputs: derived targets' formulas over targets, or design models over parameters. */
+export interface FormulaWording {
+  /** "formula" or "model" */
+  formula: string
+  /** ends "The formula uses "x", which …" for one unknown key */
+  unknownOne: string
+  /** … for several */
+  unknownMany: string
+  /** names an input in a unit problem, e.g. 'Target "x"' */
+  input: (key: string) => string
+}
+
+export const TARGET_WORDING: FormulaWording = {
+  formula: 'formula',
+  unknownOne: 'is not a target of this build',
+  unknownMany: 'are not targets of this build',
+  input: key => `Target "${key}"`,
+}
+
+function checkParsed(parsed: Parsed, inputs: Record<string, { unit: string }>, resultUnit: string, words: FormulaWording = TARGET_WORDING): void {
   const unknown = parsed.symbols.filter(s => !Object.hasOwn(inputs, s))
   if (unknown.length > 0) {
     const list = unknown.map(k => `"${k}"`).join(', ')
     throw new FormulaError(
       'unknown-key',
       unknown.length === 1
-        ? `The formula uses ${list}, which is not a target of this build`
-        : `The formula uses ${list}, which are not targets of this build`,
+        ? `The ${words.formula} uses ${list}, which ${words.unknownOne}`
+        : `The ${words.formula} uses ${list}, which ${words.unknownMany}`,
       unknown,
     )
   }
   const dims: Record<string, Dims> = {}
-  for (const key of parsed.symbols) dims[key] = dimsOfTarget(inputs[key]!.unit, `Target "${key}"`)
+  for (const key of parsed.symbols) dims[key] = dimsOfTarget(inputs[key]!.unit, words.input(key))
   const target = dimsOfTarget(resultUnit, 'This target')
   const gives = dimsOf(parsed.node, dims)
   if (!sameDims(gives, target)) {
     const unit = parseUnit(resultUnit)
     throw new FormulaError(
       'dimension',
-      `The formula gives ${describe(gives)} but this target is measured in ${quantityLabel(unit.quantity)} (${unit.unit})`,
+      `The ${words.formula} gives ${describe(gives)} but this target is measured in ${quantityLabel(unit.quantity)} (${unit.unit})`,
     )
   }
 }
@@ -247,9 +267,10 @@ export function checkFormula(
   formula: string,
   inputs: Record<string, { unit: string }>,
   resultUnit: string,
+  words: FormulaWording = TARGET_WORDING,
 ): { symbols: string[] } {
   const parsed = parse(formula)
-  checkParsed(parsed, inputs, resultUnit)
+  checkParsed(parsed, inputs, resultUnit, words)
   return { symbols: parsed.symbols }
 }
 
@@ -302,7 +323,7 @@ export interface DerivedInput {
   mean: number
   /** Its standard uncertainty in SI, or null when it has none. */
   u: number | null
-  /** Its display unit (for the dimension check). */
+  /** Its display unit (for the dimension check); '' for a dimensionless number. */
   unit: string
 }
 
@@ -337,9 +358,10 @@ export function evaluateDerived(
   formula: string,
   inputs: Record<string, DerivedInput>,
   resultUnit: string,
+  words: FormulaWording = TARGET_WORDING,
 ): DerivedValue {
   const parsed = parse(formula)
-  checkParsed(parsed, inputs, resultUnit)
+  checkParsed(parsed, inputs, resultUnit, words)
 
   const scope: Record<string, number> = {}
   for (const key of parsed.symbols) {
