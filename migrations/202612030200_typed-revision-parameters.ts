@@ -23,9 +23,13 @@ interface Stored { key?: string, name?: string, value: number | string, unit: st
 export async function up(knex: Knex): Promise<void> {
   const rows: { id: string, parameters: Stored[] }[] = await knex('revisions').select('id', 'parameters')
   for (const row of rows) {
-    if (row.parameters.length === 0) continue
+    if (row.parameters.length === 0 || row.parameters.every(p => typeof p.key === 'string')) continue
     const taken = new Set<string>()
     const parameters = row.parameters.map((p) => {
+      if (typeof p.key === 'string') {
+        taken.add(p.key)
+        return { key: p.key, name: p.name ?? p.key, value: p.value, unit: p.unit ?? null, tolerance: p.tolerance ?? null }
+      }
       let key = keyOf(p.name ?? 'parameter')
       for (let i = 2; taken.has(key); i++) key = `${keyOf(p.name ?? 'parameter')}_${i}`
       taken.add(key)
