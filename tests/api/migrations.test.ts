@@ -52,8 +52,8 @@ describe('migrations on a scratch database', () => {
     await db.migrate.latest()
     // back to before the typed parameters (and whatever came after them)
     while (await db.migrate.currentVersion() >= '202612030200') await db.migrate.down()
-    const [team] = await db('teams').insert({ name: 'Migration team', slug: 'migration-team' }).returning('id')
-    const [build] = await db('builds').insert({ team_id: team.id, name: 'Migration build', slug: 'migration-build' }).returning('id')
+    const [team] = await db('teams').insert({ name: 'Migration team', slug: 'migration-team' }).returning('id') as { id: string }[]
+    const [build] = await db('builds').insert({ team_id: team!.id, name: 'Migration build', slug: 'migration-build' }).returning('id') as { id: string }[]
     const old = [
       { name: 'Wheel radius (front)', value: 50, unit: 'mm' },
       { name: 'Gear ratio', value: 1.4, unit: null },
@@ -61,9 +61,9 @@ describe('migrations on a scratch database', () => {
       { name: 'pi', value: 3, unit: null },
       { name: 'Carrier', value: 'S235 steel', unit: null },
     ]
-    const [rev] = await db('revisions').insert({ build_id: build.id, label: 'R1', seq: 1, parameters: JSON.stringify(old) }).returning('id')
+    const [rev] = await db('revisions').insert({ build_id: build!.id, label: 'R1', seq: 1, parameters: JSON.stringify(old) }).returning('id') as { id: string }[]
     await db.migrate.up()
-    const up = (await db('revisions').where({ id: rev.id }).first()).parameters
+    const up = (await db('revisions').where({ id: rev!.id }).first())!.parameters
     expect(up).toEqual([
       { key: 'wheel_radius_front', name: 'Wheel radius (front)', value: 50, unit: 'mm', tolerance: null },
       { key: 'gear_ratio', name: 'Gear ratio', value: 1.4, unit: null, tolerance: null },
@@ -72,8 +72,8 @@ describe('migrations on a scratch database', () => {
       { key: 'carrier', name: 'Carrier', value: 'S235 steel', unit: null, tolerance: null },
     ])
     await db.migrate.down()
-    expect((await db('revisions').where({ id: rev.id }).first()).parameters).toEqual(old)
-    await db('teams').where({ id: team.id }).delete()
+    expect((await db('revisions').where({ id: rev!.id }).first())!.parameters).toEqual(old)
+    await db('teams').where({ id: team!.id }).delete()
     await db.migrate.latest()
   })
 })

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { FormulaError } from '../../shared/utils/derived'
+import type { FormulaError } from '../../shared/utils/derived'
 import {
   bisect, calibrate, calibrationNu, checkModel, DesignError, effectiveParameters, intervalHalfWidth, parameterKeyOf, predict,
   ratioOf, rootNear, samplesNeeded, sensitivityOf, solveFor, type DesignParameter,
