@@ -240,8 +240,8 @@ export interface Calibration {
 
 /**
  * The calibration factor over revisions: the inverse-variance weighted mean of the ratios,
- * F = Σ(rᵢ/uᵢ²)/Σ(1/uᵢ²), u(F) = (Σ 1/uᵢ²)^−½ (the weighted mean of independent estimates;
- * NIST/SEMATECH e-Handbook 2.5.5 / GUM 4.2). When a ratio's u is 0 or unknown the weights are
+ * F = Σ(rᵢ/uᵢ²)/Σ(1/uᵢ²), u(F) = (Σ 1/uᵢ²)^−½ (GUM eq. 10 on F = Σwᵢrᵢ/Σwᵢ, wᵢ = 1/uᵢ², gives
+ * u²(F) = Σ(wᵢ/Σw)²uᵢ² = 1/Σw for independent ratios). When a ratio's u is 0 or unknown the weights are
  * undefined and the plain mean is used, with u = √(Σuᵢ²)/N (GUM eq. 10 on the mean; an unknown u
  * counts as 0) — null when no ratio has a u. Null for no ratios.
  */
