@@ -149,7 +149,8 @@ export const apiRoutes: ApiRoute[] = [
     path: '/api/v1/builds/{build}/targets',
     tag: 'Targets',
     summary: 'Create a target; thresholds are given in its display unit',
-    description: 'With `formula` the target is derived: 400 for a formula that can’t be read, 422 naming an unknown key, both quantities of a dimension mismatch, or the circle of formulas.',
+    description: 'With `formula` the target is derived: 400 for a formula that can’t be read, 422 naming an unknown key, both quantities of a dimension mismatch, or the circle of formulas. '
+      + 'With `model` it gets a design model over the revisions’ parameters: 400 for one that can’t be read, 422 for a key no revision defines, a text parameter, or a dimension other than the target’s (naming both).',
     access: 'session-or-rig',
     params: build,
     body: TargetBody,
@@ -161,7 +162,10 @@ export const apiRoutes: ApiRoute[] = [
     method: 'post',
     path: '/api/v1/builds/{build}/revisions',
     tag: 'Revisions and readings',
-    summary: 'Create a revision',
+    summary: 'Create a revision, with its design parameters',
+    description: 'Parameters are `{key, name, value, unit, tolerance}`; the revision inherits every parameter of its parent it doesn’t set itself. '
+      + 'The older shape `{name, value, unit}` is still accepted (the key of the ancestor’s parameter of that name, or one made from the name). '
+      + '400 for a key given twice, a key models read otherwise, or, with a key, a unit Ratchet can’t read.',
     access: 'session-or-rig',
     params: build,
     body: RevisionBody,
@@ -430,7 +434,7 @@ export const apiRoutes: ApiRoute[] = [
     method: 'get',
     path: '/api/v1/builds/{build}/revisions/{label}',
     tag: 'Revisions and readings',
-    summary: 'One revision: every target’s statistics and readings on it, what it moved against its parent, and the fixes that landed in it',
+    summary: 'One revision: its effective design parameters (own and inherited), every target’s statistics and readings on it, what it moved against its parent, and the fixes that landed in it',
     access: 'session-or-rig',
     params: buildAnd(revisionLabel),
     ok: { 200: { description: 'OK', schema: RevisionDetailOut } },
@@ -441,6 +445,7 @@ export const apiRoutes: ApiRoute[] = [
     path: '/api/v1/builds/{build}/revisions/{label}',
     tag: 'Revisions and readings',
     summary: 'Edit a revision’s summary, changes, date and design parameters (Engineer or Owner)',
+    description: '`parameters` replaces the revision’s own parameters (inherited ones stay inherited); the rules are those of creation. A frozen revision is a 409.',
     access: 'session-or-rig',
     params: buildAnd(revisionLabel),
     body: RevisionPatch,
