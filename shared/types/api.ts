@@ -330,6 +330,8 @@ export interface SolveResult {
   value: number
   unit: string | null
   factor: number
+  /** false when no revision has both a prediction and a measurement (factor 1) */
+  calibrated: boolean
   revision: string
   margin: 'none' | '95'
   /** the calibrated prediction at `value`, in the target's display unit */

@@ -406,7 +406,8 @@ export interface Solved {
 /**
  * The value of one parameter at which the calibrated prediction F·f meets the goal. With margin
  * '95', where its lower 95 % bound F·f − k·u meets the threshold of an at-least target (the upper
- * bound F·f + k·u for at-most; a between target aims at the middle, the margin is not used). u²
+ * bound F·f + k·u for at-most; a between target aims at the middle, and its 95 % interval there
+ * must fit inside the band). u²
  * = (f·u_F)² + (F·u_f)², k = t(0.975, ν) with ν by Welch–Satterthwaite over the factor's ν and the
  * tolerances' ∞ (GUM G.4.1, G.4.3). Other parameters keep their values. DesignError otherwise.
  */
@@ -420,7 +421,8 @@ export function solveFor(input: SolveInput): Solved {
   const x0 = p.value as number
   if (x0 === 0) throw new DesignError('no-solution', `"${p.key}" is 0 on this revision, so there is no range from 1/1000× to 1000× of it to search`)
   const target = goalValue(input.goal)
-  const useMargin = input.margin === '95' && input.goal.comparator !== 'between'
+  const between = input.goal.comparator === 'between'
+  const useMargin = input.margin === '95' && !between
   const side = input.goal.comparator === 'atMost' ? 1 : -1
   const at = (x: number) => {
     const pr = predict(input.model, input.parameters, input.targetUnit, { [p.key]: x })
@@ -429,8 +431,8 @@ export function solveFor(input: SolveInput): Solved {
     const uf = input.factor.value * pr.u
     const u = Math.hypot(uF, uf)
     const nu = u > 0 ? welchSatterthwaite([{ u: Math.abs(uF), nu: input.factor.nu }, { u: Math.abs(uf), nu: Infinity }]) : Infinity
-    const k = useMargin ? tQuantile(0.975, nu) : null
-    return { value, u, k, bound: k === null ? value : value + side * k * u }
+    const k = input.margin === '95' ? tQuantile(0.975, nu) : null
+    return { value, u, k, bound: k === null || !useMargin ? value : value + side * k * u }
   }
   const g = (x: number) => {
     try {
@@ -452,6 +454,17 @@ export function solveFor(input: SolveInput): Solved {
     )
   }
   const there = at(root)
+  if (between && input.margin === '95') {
+    // aimed at the middle: the 95 % interval there must fit inside the band
+    const half = there.k! * there.u
+    const room = (input.goal.thresholdHigh! - input.goal.threshold) / 2
+    if (half > room) {
+      throw new DesignError(
+        'no-solution',
+        `At "${p.key}" = ${fmt(root)}${unit} the calibrated prediction sits in the band’s middle, but its 95 % interval (±${fmt(half)} ${input.targetUnit}) is wider than the half-band (${fmt(room)} ${input.targetUnit})`,
+      )
+    }
+  }
   return { value: root, predicted: there.value, u: there.u, k: there.k }
 }
 

@@ -221,7 +221,7 @@ describe('design math beside the measurement', () => {
       const d = (await w.reviewer.client.get(v1('/targets/exit_speed/design'))).body
       const res = await w.reviewer.client.post(v1('/targets/exit_speed/solve'), { parameter: 'wheel_radius' })
       expect(res.status).toBe(200)
-      expect(res.body).toMatchObject({ parameter: 'wheel_radius', unit: 'mm', revision: 'RF', margin: 'none', goal: 18 })
+      expect(res.body).toMatchObject({ parameter: 'wheel_radius', unit: 'mm', revision: 'RF', margin: 'none', goal: 18, calibrated: true })
       expectRelClose(res.body.factor, d.calibration.factor, 1e-12)
       const p = rim(3000, 30, 55, 0.5)
       expectRelClose(res.body.value, 55 * 18 / (res.body.factor * p.value), 1e-9)
@@ -261,6 +261,15 @@ describe('design math beside the measurement', () => {
       await expectRefused(buildId, 422, () => w.reviewer.client.post(v1('/targets/tip_speed/solve'), { parameter: 'wheel_radius' }), /^No value of "wheel_radius" between 0\.055 and 55000 mm makes the calibrated prediction reach 100000 m\/s/)
       await expectRefused(buildId, 422, () => w.reviewer.client.post(v1('/targets/near_speed/solve'), { parameter: 'wheel_radius' }), /has no model/)
     })
+  })
+
+  it('without a calibration the model alone is solved (factor 1, calibrated false)', async () => {
+    await newTarget(w.engineer.client, slug, { key: 'untested_speed', name: 'Untested speed', unit: 'km/h', comparator: 'atMost', threshold: 36, model: 'motor_speed * wheel_radius' })
+    const res = await w.reviewer.client.post(v1('/targets/untested_speed/solve'), { parameter: 'motor_speed' })
+    expect(res.status).toBe(200)
+    expect(res.body).toMatchObject({ factor: 1, calibrated: false, unit: 'rpm', goal: 36 })
+    // 36 km/h = 10 m/s on a 55 mm radius: ω = 10/0.055 rad/s = 10/0.055·60/(2π) rpm
+    expectRelClose(res.body.value, 10 / 0.055 * 60 / (2 * Math.PI), 1e-9)
   })
 
   describe('plan', () => {

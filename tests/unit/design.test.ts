@@ -186,6 +186,19 @@ describe('solver', () => {
     expect(s.value).toBeCloseTo(50 * 12 / f0, 9)
   })
 
+  it('a between target with a 95 % margin needs its interval inside the band', () => {
+    const f0 = predict('motor_speed * wheel_radius', rim(50), 'm/s').value
+    const band = { comparator: 'between' as const, threshold: 10, thresholdHigh: 14 }
+    // u(F)·f = 0.05·12 = 0.6 m/s at the middle, ν = ∞: ±1.96·0.6 = ±1.18 fits in ±2
+    const fits = solveFor({ model: 'motor_speed * wheel_radius', parameters: rim(50), parameter: 'wheel_radius', targetUnit: 'm/s', goal: band, factor: { value: 1, u: 0.05, nu: Infinity }, margin: '95' })
+    expect(fits.value).toBeCloseTo(50 * 12 / f0, 9)
+    expect(fits.u).toBeCloseTo(0.6, 9)
+    // u(F)·f = 0.1·12 = 1.2 m/s: ±2.35 does not fit in ±2
+    const e = thrown(() => solveFor({ model: 'motor_speed * wheel_radius', parameters: rim(50), parameter: 'wheel_radius', targetUnit: 'm/s', goal: band, factor: { value: 1, u: 0.1, nu: Infinity }, margin: '95' })) as DesignError
+    expect(e.code).toBe('no-solution')
+    expect(e.message).toMatch(/its 95 % interval \(±2\.35196 m\/s\) is wider than the half-band \(2 m\/s\)$/)
+  })
+
   it('no solution within 1/1000× to 1000× says so', () => {
     const e = thrown(() => solveFor({ model: 'motor_speed * wheel_radius', parameters: rim(50), parameter: 'wheel_radius', targetUnit: 'm/s', goal: goal(1e6), factor: { value: 1, u: 0, nu: Infinity }, margin: 'none' })) as DesignError
     expect(e.code).toBe('no-solution')

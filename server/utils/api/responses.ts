@@ -466,6 +466,7 @@ export const SolveOut = z.object({
   value: described(z.number(), 'in the parameter’s unit'),
   unit: z.string().nullable(),
   factor: described(z.number(), 'the calibration factor used (1 without a calibration)'),
+  calibrated: described(z.boolean(), 'false when no revision has both a prediction and a measurement yet'),
   revision: described(z.string(), 'the revision whose other parameters were kept'),
   margin: z.enum(['none', '95']),
   predicted: described(z.number(), `the calibrated prediction at that value, ${inDisplayUnit}`),

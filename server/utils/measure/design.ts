@@ -265,6 +265,7 @@ export async function solveTarget(db: Db, input: { target: TargetRow, body: z.ou
       value: tidyNumber(solved.value),
       unit: p.unit,
       factor: cal?.factor ?? 1,
+      calibrated: cal !== null,
       revision: row.label,
       margin,
       predicted: tidyNumber(solved.predicted),
