@@ -103,6 +103,10 @@ describe('design math beside the measurement', () => {
         { key: 'spring_rate', name: 'Spring rate', value: '12.5', unit: 'N/mm', tolerance: null },
         { key: 'teeth', name: 'Teeth', value: 36, unit: 'teeth', tolerance: null },
       ])
+      // an older-shape parameter whose key another parameter of the list gives explicitly gets its own
+      const mixed = await w.engineer.client.post(`/api/v1/builds/${b.slug}/revisions`, { label: 'A9', parent: null, parameters: [{ name: 'Gear ratio', value: 1 }, { key: 'gear_ratio', value: 2 }] })
+      expect(mixed.status).toBe(201)
+      expect(mixed.body.parameters.map((p: { key: string }) => p.key)).toEqual(['gear_ratio_2', 'gear_ratio'])
       const a3 = await w.engineer.client.patch(`/api/v1/builds/${b.slug}/revisions/A2`, { parameters: [{ name: 'Wheel radius (front)', value: 62, unit: 'mm' }] })
       expect(a3.status).toBe(200)
       expect(a3.body.parameters).toEqual([{ key: 'r_wheel', name: 'Wheel radius (front)', value: 62, unit: 'mm', tolerance: null }])

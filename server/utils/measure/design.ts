@@ -91,7 +91,8 @@ export async function parametersToStore(db: Db, buildId: string, startAt: string
     else {
       const name = p.name!
       key = known.get(name.toLowerCase()) ?? parameterKeyOf(name)
-      if (seen.has(key)) key = uniqueParameterKey(parameterKeyOf(name), new Set([...seen, ...taken]))
+      // a key given elsewhere in the list, or one already used here, is not taken twice
+      if (seen.has(key) || taken.has(key)) key = uniqueParameterKey(parameterKeyOf(name), new Set([...seen, ...taken]))
       if (unit) {
         try {
           unit = parseUnit(unit).unit
