@@ -51,10 +51,16 @@ function normalizeFormula(formula: string): string {
     .replace(/³/g, '^3')
 }
 
+// Formulas read lately (only those that passed the grammar), by their folded text; bounded.
+const PARSED_MAX = 500
+const parsedFormulas = new Map<string, Parsed>()
+
 function parse(formula: string): Parsed {
   const text = normalizeFormula(String(formula ?? '')).trim()
   if (text === '') throw new FormulaError('syntax', 'The formula is empty')
   if (text.length > FORMULA_MAX_LENGTH) throw new FormulaError('syntax', `The formula is longer than ${FORMULA_MAX_LENGTH} characters`)
+  const seen = parsedFormulas.get(text)
+  if (seen) return seen
   let node: MathNode
   try {
     node = math.parse(text)
@@ -64,7 +70,10 @@ function parse(formula: string): Parsed {
   }
   const symbols = new Set<string>()
   check(node, symbols)
-  return { node, symbols: [...symbols] }
+  const parsed = { node, symbols: [...symbols] }
+  if (parsedFormulas.size >= PARSED_MAX) parsedFormulas.clear()
+  parsedFormulas.set(text, parsed)
+  return parsed
 }
 
 /** Walks the tree and refuses anything outside the small grammar formulas are allowed. */
@@ -336,10 +345,35 @@ export interface DerivedValue {
   partials: Record<string, number>
 }
 
+// Compiled trees and derivatives of the parsed formulas (held as long as the tree is): a solver
+// evaluates one formula hundreds of times.
+const compiled = new WeakMap<MathNode, ReturnType<MathNode['compile']>>()
+const derivatives = new WeakMap<MathNode, Map<string, MathNode>>()
+
+/** ∂node/∂key (exact, unsimplified), kept with the parsed tree it came from. */
+function derivativeOf(node: MathNode, key: string): MathNode {
+  let byKey = derivatives.get(node)
+  if (!byKey) {
+    byKey = new Map()
+    derivatives.set(node, byKey)
+  }
+  let d = byKey.get(key)
+  if (!d) {
+    d = math.derivative(node, key, { simplify: false })
+    byKey.set(key, d)
+  }
+  return d
+}
+
 function evaluateNumber(node: MathNode, scope: Record<string, number>): number {
   let value: unknown
   try {
-    value = node.compile().evaluate({ ...scope })
+    let code = compiled.get(node)
+    if (!code) {
+      code = node.compile()
+      compiled.set(node, code)
+    }
+    value = code.evaluate({ ...scope })
   }
   catch {
     value = Number.NaN
@@ -387,7 +421,7 @@ export function evaluateDerived(
   let anyU = false
   for (const key of parsed.symbols) {
     const u = inputs[key]!.u
-    const c = evaluateNumber(math.derivative(parsed.node, key, { simplify: false }), scope)
+    const c = evaluateNumber(derivativeOf(parsed.node, key), scope)
     partials[key] = c
     if (u === null) continue
     anyU = true
