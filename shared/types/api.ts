@@ -227,10 +227,14 @@ export interface ComparedTarget {
   note: string | null
 }
 
+/** One side of a parameter in a comparison: the revision's effective value. */
+export interface ParameterSide { value: number | string, unit: string | null, tolerance: number | null, inherited: boolean }
+
 export interface ParameterDiff {
+  key: string
   name: string
-  a: { value: number | string, unit: string | null } | null
-  b: { value: number | string, unit: string | null } | null
+  a: ParameterSide | null
+  b: ParameterSide | null
   differs: boolean
 }
 

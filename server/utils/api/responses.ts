@@ -235,7 +235,12 @@ export const TargetDetailOut = z.object({
 })
 
 const CompareSideOut = z.object({ ...statsShape, readings: described(z.int(), 'readings pooled'), status: measuredStatus })
-const ParameterSide = z.object({ value: z.union([z.number(), z.string()]), unit: z.string().nullable() })
+const ParameterSide = z.object({
+  value: z.union([z.number(), z.string()]),
+  unit: z.string().nullable(),
+  tolerance: z.number().nullable(),
+  inherited: described(z.boolean(), 'set on an ancestor of the revision'),
+})
 
 export const ComparisonOut = z.object({
   build: BuildRef,
@@ -252,7 +257,10 @@ export const ComparisonOut = z.object({
     })),
     'every active target, in strip order',
   ),
-  parameters: z.array(z.object({ name: z.string(), a: ParameterSide.nullable(), b: ParameterSide.nullable(), differs: z.boolean() })),
+  parameters: described(
+    z.array(z.object({ key: z.string(), name: z.string(), a: ParameterSide.nullable(), b: ParameterSide.nullable(), differs: z.boolean() })),
+    'the two revisions’ effective design parameters (own and inherited) side by side, by key',
+  ),
 })
 
 export const RevisionDetailOut = RevisionOut.extend({
