@@ -54,6 +54,35 @@ ensure_deps() {
   fi
 }
 
+# scratch_db NAME: the cluster of RATCHET_PGDATA/RATCHET_PGPORT started, database NAME emptied
+# and migrated; exports DATABASE_URL
+scratch_db() {
+  echo "== PostgreSQL (cluster on 127.0.0.1:$RATCHET_PGPORT, database $1)"
+  bash "$ROOT/scripts/db.sh" start
+  bash "$ROOT/scripts/db.sh" reset "$1" >/dev/null
+  DATABASE_URL="$(bash "$ROOT/scripts/db.sh" url "$1")"
+  export DATABASE_URL
+  (cd "$ROOT" && npx tsx scripts/migrate.ts latest)
+}
+
+# built_app FORCE LOGFILE: builds .output when FORCE is 1 or no build exists, under the lock npm
+# test takes (builds share .output)
+built_app() {
+  if [ "$1" = 1 ] || [ ! -f "$ROOT/.output/server/index.mjs" ]; then
+    echo "== building the app"
+    mkdir -p "$ROOT/.data"
+    exec 9>"$ROOT/.data/test.lock"
+    flock 9
+    (cd "$ROOT" && npx nuxt build >"$2" 2>&1) || { tail -40 "$2"; exit 1; }
+    flock -u 9
+  fi
+}
+
+# throwaway_secret PREFIX: a session password for a scratch server
+throwaway_secret() {
+  echo "$1-session-password-$(node -e "process.stdout.write(require('crypto').randomBytes(16).toString('hex'))")"
+}
+
 # source_fingerprint: one hash over every file the build reads (tracked or new, not ignored),
 # tests and prose left out; empty outside a git checkout, which then always builds
 source_fingerprint() {

@@ -13,6 +13,6 @@ const HAZARDS: Record<string, string> = {
 
 /** The usual short caution for a quantity that can hurt. */
 export function cautionText(quantity: string | null | undefined): string {
-  const hazard = (quantity && HAZARDS[quantity]) || 'This test can hurt people or damage equipment.'
+  const hazard = (quantity && Object.hasOwn(HAZARDS, quantity) && HAZARDS[quantity]) || 'This test can hurt people or damage equipment.'
   return `${hazard} Guard the test and follow local codes and licensed practice.`
 }

@@ -185,6 +185,12 @@ export interface ReadingRow extends StatsRow {
   method: string
   resolution_si: number | null
   resolution_entered: number | null
+  /** a stated result's standard uncertainty in SI; null for a samples reading */
+  stated_u_si: number | null
+  /** the same as entered, in unit_entered */
+  stated_u_entered: number | null
+  /** a stated result's degrees of freedom; null: infinite (or a samples reading) */
+  stated_dof: number | null
   taken_at: Date
   taken_by: string | null
   rig_token_id: string | null
@@ -198,6 +204,8 @@ export interface CellRow extends StatsRow {
   build_id: string
   /** how many readings were pooled */
   readings: number
+  /** how many of them are stated results (0: samples only) */
+  stated: number
   status: CellDecision['status']
   delta: number | null
   p: number | null

@@ -57,6 +57,8 @@ export interface HistoryEntry extends StatsInUnit {
   revision: string
   /** how many readings were pooled */
   readings: number
+  /** how many of them are stated results (value ± u); 0: samples only */
+  stated: number
   status: Exclude<TargetStatus, 'untested'>
   /** null on the first revision with a reading */
   delta: number | null
@@ -99,8 +101,12 @@ export interface Scoreboard {
   targets: ScoreTarget[]
 }
 
+/** 'samples': values measured here; 'stated': one result with its own standard uncertainty */
+export type ReadingKind = 'samples' | 'stated'
+
 export interface ReadingStatsView extends StatsInUnit {
   id: string
+  kind: ReadingKind
   unit: string
   status: Exclude<TargetStatus, 'untested'>
 }
@@ -114,6 +120,7 @@ export interface ReadingCreated {
 
 export interface ReadingDetail {
   id: string
+  kind: ReadingKind
   revision: string
   n: number
   /** statistics of this reading alone, in the display unit */
@@ -127,6 +134,12 @@ export interface ReadingDetail {
   resolutionEntered: number | null
   /** in the display unit */
   resolution: number | null
+  /** a stated result's standard uncertainty as entered (in unitEntered); null for samples */
+  uEntered: number | null
+  /** the same in the display unit */
+  u: number | null
+  /** a stated result's degrees of freedom; null: infinite, or a samples reading */
+  dof: number | null
   takenAt: string
   by: string | null
   rig: boolean

@@ -60,7 +60,7 @@ export interface CsvPreview {
   /** rows in the whole file, when it could be counted */
   totalRows: number
   /** columns that look like values, units and times */
-  guess: { value: string | null, unit: string | null, time: string | null, revision: string | null }
+  guess: { value: string | null, unit: string | null, time: string | null, revision: string | null, u: string | null, dof: string | null }
   /** set when the file can't be imported as it is (too large, not text) */
   problem: string | null
 }

@@ -70,10 +70,24 @@ export const RigTokenBody = z.object({
   expiresAt: z.iso.datetime({ offset: true, error: 'Use an ISO date and time' }).optional().nullable(),
 })
 
+type Issue = z.core.$ZodIssue
+
+/**
+ * The issues of a union the input matched no branch of, as the branch it was meant for reports
+ * them: the first branch whose fields reserved for another branch (typed `never`) the input
+ * doesn't carry. When every branch has such a field set, the union's own message stands.
+ */
+function unionIssues(issue: Issue): Issue[] {
+  if (issue.code !== 'invalid_union' || !Array.isArray(issue.errors)) return [issue]
+  const meant = issue.errors.find(branch => !branch.some(i => i.code === 'invalid_type' && i.expected === 'never'))
+  if (!meant) return [issue]
+  return meant.flatMap(i => unionIssues({ ...i, path: [...issue.path, ...i.path] } as Issue))
+}
+
 /** First message per field, for forms. */
 export function fieldErrors(error: z.ZodError): Record<string, string> {
   const out: Record<string, string> = {}
-  for (const issue of error.issues) {
+  for (const issue of error.issues.flatMap(unionIssues)) {
     const key = issue.path.join('.') || '_'
     out[key] ??= issue.message
   }

@@ -4,7 +4,7 @@
 // The server keeps these cells in a cache table; the seed and the benchmark use the same code.
 
 import { movementOf, statusOf, type Comparator, type Movement, type MovementResult, type TargetStatus } from './conformance'
-import { pooledStats, type ReadingStats } from './readingStats'
+import { combineResults, pooledStats, type ReadingStats, type ResultEstimate } from './readingStats'
 import { diffFromSI, fromSI, type UnitInfo } from './units'
 
 /** A target's rule with every number in SI. */
@@ -28,6 +28,8 @@ export interface CellStats {
   nuEff: number | null
   ciLow: number | null
   ciHigh: number | null
+  /** how many of the readings are stated results (value ± u); 0 or absent: samples only */
+  stated?: number
 }
 
 export interface CellDecision {
@@ -55,9 +57,52 @@ export function cellFromStats(s: ReadingStats, readings = 1): CellStats {
   }
 }
 
-/** Pools the readings of one cell (values and resolution in SI) into one sample set. */
-export function poolCell(readings: readonly { values: readonly number[], resolution: number | null }[]): CellStats {
-  return cellFromStats(pooledStats(readings), readings.length)
+/** A reading of a cell in SI: samples (values, resolution), or a stated result (values = [value], u, dof). */
+export interface CellReading {
+  values: readonly number[]
+  resolution: number | null
+  /** a stated result's standard uncertainty; null or absent for samples */
+  u?: number | null
+  /** a stated result's degrees of freedom; null or absent: infinite */
+  dof?: number | null
+}
+
+/**
+ * Pools the readings of one cell (in SI). Samples only: one sample set, the values concatenated.
+ * With stated results: the samples are pooled first into one result (mean, u, ν_eff), then it and
+ * every stated result are combined as independent estimates by inverse-variance weighting
+ * (readingStats.combineResults; docs/computation.md §Stated results).
+ */
+export function poolCell(readings: readonly CellReading[]): CellStats {
+  const stated = readings.filter(r => r.u != null)
+  if (stated.length === 0) return cellFromStats(pooledStats(readings), readings.length)
+  const samples = readings.filter(r => r.u == null)
+  const results: ResultEstimate[] = []
+  let n = 0
+  if (samples.length > 0) {
+    const s = pooledStats(samples)
+    results.push({ x: s.mean, u: s.u, nu: s.nuEff ?? Infinity })
+    n += s.n
+  }
+  for (const r of stated) {
+    if (r.values.length !== 1) throw new RangeError('A stated result holds exactly one value')
+    results.push({ x: r.values[0]!, u: r.u!, nu: r.dof ?? Infinity })
+    n += 1
+  }
+  const c = combineResults(results)
+  return {
+    readings: readings.length,
+    n,
+    mean: c.mean,
+    sd: null,
+    uA: null,
+    uB: null,
+    u: c.u,
+    nuEff: c.nuEff,
+    ciLow: c.ci95 ? c.ci95[0] : null,
+    ciHigh: c.ci95 ? c.ci95[1] : null,
+    stated: stated.length,
+  }
 }
 
 function ci95Of(c: Pick<CellStats, 'ciLow' | 'ciHigh'>): [number, number] | null {
@@ -72,9 +117,9 @@ export function cellStatus(cell: Pick<CellStats, 'mean' | 'ciLow' | 'ciHigh'>, r
  * Status and movement of every cell of one target, given in revision order. Both rules are
  * unchanged by a change of unit with a positive factor (the status compares in order, Welch's p
  * is scale-free, the noise band is converted with the means), so deciding in SI decides for
- * every display unit.
+ * every display unit. Cells with stated results move by the generalised test (conformance.movementOf).
  */
-export function decideCells(cells: readonly Pick<CellStats, 'n' | 'mean' | 'sd' | 'ciLow' | 'ciHigh'>[], rule: SiRule): CellDecision[] {
+export function decideCells(cells: readonly (Pick<CellStats, 'n' | 'mean' | 'sd' | 'ciLow' | 'ciHigh'> & Partial<Pick<CellStats, 'u' | 'nuEff' | 'stated'>>)[], rule: SiRule): CellDecision[] {
   return cells.map((cell, i) => {
     const status = cellStatus(cell, rule)
     if (i === 0) return { status, delta: null, p: null, movement: null, real: null, reason: null }

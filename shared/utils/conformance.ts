@@ -2,7 +2,7 @@
 // the 95 % interval, not the bare mean, has to clear the threshold), the margin to it, and
 // whether a change between two revisions is real and in which direction.
 
-import { StatsOverflowError, welchTest } from './readingStats'
+import { StatsOverflowError, statedTest, welchTest } from './readingStats'
 
 export type TargetStatus = 'met' | 'marginal' | 'short' | 'untested'
 export type Movement = 'gained' | 'slipped' | 'steady'
@@ -97,6 +97,12 @@ export interface MovementSide {
   mean: number
   n?: number | null
   sd?: number | null
+  /** combined standard uncertainty (used when a side holds stated results) */
+  u?: number | null
+  /** its effective degrees of freedom; null or absent with a u: infinite */
+  nuEff?: number | null
+  /** how many stated results the side pools; 0 or absent: samples only */
+  stated?: number | null
 }
 
 export interface MovementResult {
@@ -115,6 +121,8 @@ export const SIGNIFICANCE = 0.05
 /**
  * Movement between the previous revision with a reading (`before`) and this one (`now`).
  * - Derived targets with both uncertainties: real when |Δ| > 2·√(u₁² + u₂²).
+ * - Either side holds a stated result, both with a u: Welch's test generalised to stated
+ *   uncertainties, t = Δ/√(u₁² + u₂²), ν by Welch–Satterthwaite, real when p < 0.05.
  * - n ≥ 2 on both sides: Welch's test, real when p < 0.05.
  * - Otherwise, with a noise band: real when |Δ| exceeds it; without one: steady, not enough data.
  * A noise band also vetoes a significant change smaller than the band ("inside the noise band").
@@ -148,6 +156,26 @@ export function movementOf(
   if (opts.derived && hasU(u1) && hasU(u2)) {
     real = size > 2 * Math.sqrt(u1 * u1 + u2 * u2)
     reason = 'uncertainty'
+  }
+  else if (!opts.derived && ((before.stated ?? 0) > 0 || (now.stated ?? 0) > 0)) {
+    const bu = before.u
+    const nu = now.u
+    if (hasU(bu) && hasU(nu)) {
+      p = statedTest(
+        { mean: now.mean, u: nu, nu: now.nuEff ?? Infinity },
+        { mean: before.mean, u: bu, nu: before.nuEff ?? Infinity },
+      ).p
+      real = p < SIGNIFICANCE
+      reason = 'welch'
+    }
+    else if (band > 0) {
+      real = size > band
+      reason = 'noise-band'
+    }
+    else {
+      real = false
+      reason = 'not-enough-data'
+    }
   }
   else if (!opts.derived && sampled(before) && sampled(now)) {
     p = welchTest(

@@ -3,8 +3,10 @@ import { UnitError, assertSameQuantity } from './units'
 
 // Turning an instrument's CSV into readings: every row is checked, and every problem names its
 // line (1-based, the header being line 1 when it is the first line of the file). Rows are grouped
-// by revision and unit; each group becomes one reading. No I/O: the server parses the file
-// (papaparse) and writes the readings in one transaction.
+// by revision and unit; each group becomes one reading. A row with a standard uncertainty (the
+// optional u column) is a stated result instead: one reading of its own, value ± u, with the
+// degrees of freedom of the optional dof column (blank: infinite). No I/O: the server parses the
+// file (papaparse) and writes the readings in one transaction.
 
 export interface CsvRow {
   /** the line the row starts on */
@@ -18,6 +20,10 @@ export interface CsvColumns {
   unit?: string | null
   time?: string | null
   revision?: string | null
+  /** a stated result's standard uncertainty (in the row's unit); rows with a blank cell are samples */
+  u?: string | null
+  /** a stated result's degrees of freedom; blank: infinite */
+  dof?: string | null
 }
 
 export interface CsvDefaults {
@@ -45,6 +51,8 @@ export interface CsvGroup {
   takenAt: string | null
   firstLine: number
   lastLine: number
+  /** a stated result (one row: values = [value]); absent for a group of samples */
+  stated?: { u: number, dof: number | null }
 }
 
 export interface CsvPlan {
@@ -57,6 +65,9 @@ export interface CsvPlan {
 }
 
 export const MAX_PROBLEMS = 20
+
+/** Stated results one file may hold: each is a reading of its own, and every reading re-pools its cell. */
+export const MAX_STATED_ROWS = 1000
 
 const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/
 const COMMA_NUMBER = /^[+-]?\d+,\d+([eE][+-]?\d+)?$/
@@ -113,6 +124,8 @@ export function locateColumns(header: string[], columns: CsvColumns, headerLine 
       unit: find('unit', columns.unit),
       time: find('time', columns.time),
       revision: find('revision', columns.revision),
+      u: find('standard uncertainty', columns.u),
+      dof: find('degrees of freedom', columns.dof),
     },
     problems,
   }
@@ -133,6 +146,7 @@ export function planCsvImport(header: string[], rows: CsvRow[], columns: CsvColu
   for (const p of headerProblems) problem(p.line, p.message)
   if (index.revision === null && !defaults.revision?.trim()) problem(headerLine, 'Choose the revision, or a column that names it')
   if (index.unit === null && !defaults.unit?.trim()) problem(headerLine, 'Choose the unit the values are in, or a column that names it')
+  if (columns.dof && !columns.u) problem(headerLine, 'A degrees-of-freedom column goes with a standard uncertainty (u) column')
   // a default unit must fit the target even when every row names its own
   const unitCache = new Map<string, string | UnitError>()
   const unitOf = (text: string): string | UnitError => {
@@ -152,6 +166,7 @@ export function planCsvImport(header: string[], rows: CsvRow[], columns: CsvColu
   if (problemCount > 0 || index.value === null) return { groups: [], rows: rows.length, problems, problemCount }
 
   const groups = new Map<string, CsvGroup>()
+  let statedRows = 0
   const cell = (r: CsvRow, i: number | null) => (i === null ? '' : (r.cells[i] ?? '').trim())
   for (const r of rows) {
     const raw = cell(r, index.value)
@@ -183,7 +198,42 @@ export function planCsvImport(header: string[], rows: CsvRow[], columns: CsvColu
       else if (takenAt === null) problem(r.line, `Line ${r.line}: ${quote(timeText)} in column ${quote(columns.time ?? '')} is not a date and time (use ISO 8601, e.g. 2026-03-14T10:30:00Z)`)
     }
 
-    if (value === null || unit === null || !revision || (index.time !== null && takenAt === null)) continue
+    // a stated result: the row's own u (≥ 0) and, optionally, its degrees of freedom (> 0)
+    let stated: CsvGroup['stated']
+    let statedBad = false
+    const uText = cell(r, index.u)
+    const dofText = cell(r, index.dof)
+    if (uText !== '') {
+      const u = parseNumberCell(uText, defaults.decimalComma)
+      let dof: number | null = null
+      if (u === null || u < 0) {
+        problem(r.line, `Line ${r.line}: ${quote(uText)} in column ${quote(columns.u ?? '')} is not a standard uncertainty (a number ≥ 0)`)
+        statedBad = true
+      }
+      if (dofText !== '') {
+        dof = parseNumberCell(dofText, defaults.decimalComma)
+        if (dof === null || dof <= 0) {
+          problem(r.line, `Line ${r.line}: ${quote(dofText)} in column ${quote(columns.dof ?? '')} is not a number of degrees of freedom (a number > 0; leave it blank for infinite)`)
+          statedBad = true
+        }
+      }
+      if (!statedBad) stated = { u: u!, dof }
+    }
+    else if (dofText !== '') {
+      problem(r.line, `Line ${r.line}: degrees of freedom without a standard uncertainty in column ${quote(columns.u ?? '')}`)
+      statedBad = true
+    }
+
+    if (value === null || unit === null || !revision || (index.time !== null && takenAt === null) || statedBad) continue
+    if (stated) {
+      if (++statedRows > MAX_STATED_ROWS) {
+        problem(r.line, `Line ${r.line}: a file holds at most ${MAX_STATED_ROWS.toLocaleString('en')} stated results (rows with a u); split the file`)
+        continue
+      }
+      // each stated result is a reading of its own
+      groups.set(`line\u0000${r.line}`, { revision, unit, values: [value], takenAt, firstLine: r.line, lastLine: r.line, stated })
+      continue
+    }
     const key = `${revision.toLowerCase()}\u0000${unit}`
     let g = groups.get(key)
     if (!g) {

@@ -38,6 +38,8 @@ export const CsvImportBody = z.object({
   unitColumn: optionalColumn,
   timeColumn: optionalColumn,
   revisionColumn: optionalColumn,
+  uColumn: optionalColumn.meta({ description: 'a column of standard uncertainties: a row with one is a stated result (value ± u), a reading of its own' }),
+  dofColumn: optionalColumn.meta({ description: 'with uColumn: the stated results’ degrees of freedom (blank: infinite)' }),
   revision: optionalText(40),
   unit: optionalText(30),
   method: z.string().trim().max(200, 'A method has at most 200 characters').optional(),
@@ -45,3 +47,4 @@ export const CsvImportBody = z.object({
   resolution: z.number({ error: 'The resolution must be a number' }).min(0, 'The resolution is 0 or more').nullable().optional(),
 }).refine(b => b.revision || b.revisionColumn, { message: 'Choose the revision, or a column that names it', path: ['revision'] })
   .refine(b => b.unit || b.unitColumn, { message: 'Choose the unit of the values, or a column that names it', path: ['unit'] })
+  .refine(b => !b.dofColumn || b.uColumn, { message: 'A degrees-of-freedom column goes with a standard uncertainty (u) column', path: ['dofColumn'] })

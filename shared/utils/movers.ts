@@ -11,11 +11,16 @@ export interface PairCell {
   n: number
   sd: number | null
   u: number | null
+  /** effective degrees of freedom of u; null: infinite (or no u) */
+  nuEff?: number | null
+  /** stated results pooled in the cell (0 or absent: samples only) */
+  stated?: number
 }
 
 /**
  * Movement from `a` to `b` (delta = b − a), by the rules of docs/computation.md §Movement
- * between revisions: Welch's test between the two pooled sample sets when both have n ≥ 2; for a
+ * between revisions: with a stated result on either side, the generalised test on (u, ν_eff);
+ * Welch's test between the two pooled sample sets when both have n ≥ 2; for a
  * derived target |Δ| > 2·√(u₁² + u₂²); else the noise band; else steady for lack of data.
  */
 export function compareCells(a: PairCell, b: PairCell, rule: MovementTarget, derived = false): MovementResult {

@@ -205,3 +205,121 @@ export function pooledStats(readings: readonly { values: readonly number[], reso
   }
   return computeStats(values, resolution)
 }
+
+/**
+ * A stated result: one value with its standard uncertainty u and, optionally, its effective
+ * degrees of freedom ν (null: infinite, the uncertainty is taken as known). Its 95 % interval is
+ * value ± t(0.975, ν)·u (GUM 6.2.1, 6.3.3 and G.3.2); sd, uA and uB do not apply (null).
+ */
+export function statedStats(value: number, u: number, dof?: number | null): ReadingStats {
+  if (typeof value !== 'number' || !Number.isFinite(value)) throw new RangeError('The value is not a finite number')
+  if (typeof u !== 'number' || !Number.isFinite(u) || u < 0) throw new RangeError('The standard uncertainty must be a finite number ≥ 0')
+  if (dof != null && !(typeof dof === 'number' && dof > 0 && Number.isFinite(dof))) {
+    throw new RangeError('The degrees of freedom must be a finite number > 0, or none (infinite)')
+  }
+  const nuEff = dof ?? Infinity
+  const k = tQuantile(0.975, nuEff)
+  const half = k * u
+  const ci95: [number, number] = [value - half, value + half]
+  if (!allFinite(half, ...ci95)) throw new StatsOverflowError('the 95 % interval')
+  return { n: 1, mean: value, sd: null, uA: null, uB: null, u, nuEff, k, ci95 }
+}
+
+/** One independent estimate of the measurand: its value x, standard uncertainty u (null: none) and ν. */
+export interface ResultEstimate {
+  x: number
+  u: number | null
+  /** Infinity when the uncertainty is known exactly */
+  nu: number
+}
+
+export interface CombinedEstimate {
+  mean: number
+  u: number | null
+  nuEff: number | null
+  k: number | null
+  ci95: [number, number] | null
+}
+
+/** Plain mean of some values, with the first as a shift so a large common offset costs no digits. */
+function plainMean(xs: readonly number[]): number {
+  const shift = xs[0]!
+  let sum = 0
+  for (const x of xs) sum += x - shift
+  const mean = shift + sum / xs.length
+  if (!Number.isFinite(mean)) throw new StatsOverflowError('the mean of the results')
+  return mean
+}
+
+/**
+ * Independent estimates of one quantity combined by inverse-variance weighting: wᵢ = 1/uᵢ²,
+ * x̄ = Σwᵢxᵢ/Σwᵢ, u(x̄) = (Σwᵢ)^(−1/2). x̄ is a linear function of the xᵢ with sensitivity
+ * coefficients wᵢ/Σwᵢ, so by GUM 5.1.2 (eq. 10) each contributes cᵢ = u(x̄)²/uᵢ, and ν_eff is
+ * Welch–Satterthwaite over those contributions (GUM G.4.1); the interval is x̄ ± t(0.975, ν_eff)·u(x̄).
+ * Edge cases: results with u = 0 are exact and outweigh all others (x̄ is their plain mean,
+ * u = 0, ν infinite); when any result has no uncertainty at all (u null) nothing can be weighted,
+ * so x̄ is the plain mean of the results and there is no interval.
+ */
+export function combineResults(results: readonly ResultEstimate[]): CombinedEstimate {
+  if (results.length === 0) throw new RangeError('combineResults: no results to combine')
+  for (const r of results) {
+    if (!Number.isFinite(r.x)) throw new RangeError('combineResults: every value must be finite')
+    if (r.u !== null && !(r.u >= 0 && Number.isFinite(r.u))) throw new RangeError('combineResults: u must be finite and ≥ 0')
+    if (!(r.nu > 0)) throw new RangeError('combineResults: ν must be > 0')
+  }
+  if (results.some(r => r.u === null)) {
+    return { mean: plainMean(results.map(r => r.x)), u: null, nuEff: null, k: null, ci95: null }
+  }
+  const exact = results.filter(r => r.u === 0)
+  if (exact.length > 0) {
+    const mean = plainMean(exact.map(r => r.x))
+    return { mean, u: 0, nuEff: Infinity, k: Z_975, ci95: [mean, mean] }
+  }
+  // weights relative to the smallest u, so 1/u² neither overflows nor vanishes: w'ᵢ = (s/uᵢ)² ∈ (0, 1]
+  const s = Math.min(...results.map(r => r.u!))
+  const w = results.map(r => (s / r.u!) ** 2)
+  const W = w.reduce((a, b) => a + b, 0)
+  const shift = results[0]!.x
+  let sum = 0
+  results.forEach((r, i) => { sum += w[i]! * (r.x - shift) })
+  const mean = shift + sum / W
+  if (!Number.isFinite(mean)) throw new StatsOverflowError('the weighted mean of the results')
+  const u = s / Math.sqrt(W)
+  // contributions u(x̄)²/uᵢ, scaled by 1/u(x̄) (ν_eff does not change with a common factor)
+  const nuEff = welchSatterthwaite(results.map(r => ({ u: u / r.u!, nu: r.nu })))
+  const k = tQuantile(0.975, nuEff)
+  const half = k * u
+  const ci95: [number, number] = [mean - half, mean + half]
+  if (!allFinite(half, ...ci95)) throw new StatsOverflowError('the 95 % interval')
+  return { mean, u, nuEff, k, ci95 }
+}
+
+/** Two-sided p of Student's t with ν degrees of freedom (ν = Infinity: the normal). */
+export function twoSidedP(t: number, nu: number): number {
+  if (Number.isNaN(t) || !(nu > 0)) throw new RangeError('twoSidedP: t must be a number and ν > 0')
+  if (!Number.isFinite(t)) return 0
+  const tail = Number.isFinite(nu) && nu <= LARGE_NU ? jStat.studentt.cdf(-Math.abs(t), nu) : jStat.normal.cdf(-Math.abs(t), 0, 1)
+  return Math.min(1, 2 * tail)
+}
+
+/**
+ * Welch's test generalised to results with a stated uncertainty: t = Δ/√(u₁² + u₂²), ν by
+ * Welch–Satterthwaite from (u₁, ν₁) and (u₂, ν₂) (GUM G.4.1), two-sided p from Student's t.
+ * With u₁ = u₂ = 0: equal values give p = 1, different ones p = 0 (ν infinite).
+ */
+export function statedTest(a: { mean: number, u: number, nu: number }, b: { mean: number, u: number, nu: number }): { t: number, df: number, p: number } {
+  for (const s of [a, b]) {
+    if (!Number.isFinite(s.mean) || !(s.u >= 0) || !Number.isFinite(s.u) || !(s.nu > 0)) {
+      throw new RangeError('statedTest: each side needs a finite mean, a finite u ≥ 0 and ν > 0')
+    }
+  }
+  const diff = a.mean - b.mean
+  if (!Number.isFinite(diff)) throw new StatsOverflowError('the test between the results')
+  const scale = Math.max(a.u, b.u)
+  if (scale === 0) return diff === 0 ? { t: 0, df: Infinity, p: 1 } : { t: diff > 0 ? Infinity : -Infinity, df: Infinity, p: 0 }
+  const u = scale * Math.sqrt((a.u / scale) ** 2 + (b.u / scale) ** 2)
+  const t = diff / u
+  if (!Number.isFinite(t)) throw new StatsOverflowError('the test between the results')
+  const df = welchSatterthwaite([{ u: a.u, nu: a.nu }, { u: b.u, nu: b.nu }])
+  return { t, df, p: twoSidedP(t, df) }
+}

@@ -43,7 +43,7 @@ describe('CSV import and export', () => {
       columns: ['timestamp', 'sample', 'torque'],
       rows: [{ line: 2, cells: ['2026-03-14 10:30:00', '1', '31,0'] }, { line: 4, cells: ['2026-03-14 10:30:05', '2', '31,2'] }],
       totalRows: 2,
-      guess: { value: 'torque', time: 'timestamp', unit: null, revision: null },
+      guess: { value: 'torque', time: 'timestamp', unit: null, revision: null, u: null, dof: null },
       problem: null,
     })
     const png = await uploadOk(w.engineer.client, b(), 'photo.png', Buffer.from('89504e470d0a1a0a0000000d49484452', 'hex'))
@@ -159,13 +159,14 @@ describe('CSV import and export', () => {
       expect(res.headers.get('content-type')).toBe('text/csv; charset=utf-8')
       expect(res.headers.get('content-disposition')).toBe(`attachment; filename="${q.build.slug}-readings.csv"`)
       const parsed = Papa.parse<string[]>(res.body.trim()).data
-      expect(parsed[0]).toEqual(['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method'])
+      // the first eleven columns as in every earlier version; kind, u, u_si and dof were added for stated results
+      expect(parsed[0]).toEqual(['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method', 'kind', 'u', 'u_si', 'dof'])
       expect(parsed).toHaveLength(4)
       const [, a, bRow, c] = parsed
       expect(a!.slice(0, 3)).toEqual([q.build.slug, 'top_speed', 'R1'])
       expect(a!.slice(4, 7)).toEqual(['1', '15.5', 'mph'])
       expect(Number(a![7])).toBeCloseTo(15.5 * 1609.344 / 3600, 12)
-      expect(a!.slice(8)).toEqual(['m/s', '2026-03-14T10:00:00.000Z', 'GPS, "fast" log'])
+      expect(a!.slice(8)).toEqual(['m/s', '2026-03-14T10:00:00.000Z', 'GPS, "fast" log', 'samples', '', '', ''])
       expect(bRow!.slice(4, 7)).toEqual(['2', '15.6', 'mph'])
       // °F → K: (176 − 32)/1.8 + 273.15 = 353.15 (NIST SP 811 B.8)
       expect(c!.slice(1, 2)).toEqual(['case_temp'])

@@ -42,7 +42,10 @@ function validatedWith(source: string): { body: string[], query: string[] } {
 }
 
 const key = (r: Pick<ApiRoute, 'method' | 'path'>) => `${r.method} ${r.path}`
-const input = (schema: z.ZodType) => z.toJSONSchema(schema, { io: 'input' }) as { properties: Record<string, any>, required?: string[] }
+type ObjectSchema = { properties: Record<string, any>, required?: string[], anyOf?: ObjectSchema[] }
+const input = (schema: z.ZodType) => z.toJSONSchema(schema, { io: 'input' }) as ObjectSchema
+/** The branches of a union schema (anyOf), or the schema itself. */
+const alternatives = (schema: ObjectSchema): ObjectSchema[] => schema.anyOf ?? [schema]
 
 function deref(doc: Doc, schema: { $ref?: string }) {
   return schema.$ref ? doc.components.schemas[schema.$ref.replace('#/components/schemas/', '')] : schema
@@ -74,18 +77,25 @@ function disagreements(doc: Doc, route: ApiRoute): string[] {
     out.push('the document has no body')
   }
   else {
-    const want = input(expectBody)
-    for (const field of new Set([...Object.keys(want.properties), ...Object.keys(body.properties ?? {})])) {
-      if (route.form && field === 'file') continue
-      try {
-        expect(body.properties?.[field]).toEqual(want.properties[field])
+    // a union body (a reading: samples or a stated result) is documented as anyOf, branch by branch
+    const wants = alternatives(input(expectBody))
+    const bodies = alternatives(body)
+    if (wants.length !== bodies.length) out.push(`the document has ${bodies.length} body alternatives, the schema ${wants.length}`)
+    wants.forEach((want, i) => {
+      const got: Partial<ObjectSchema> = bodies[i] ?? {}
+      const at = wants.length > 1 ? `alternative ${i + 1}, ` : ''
+      for (const field of new Set([...Object.keys(want.properties), ...Object.keys(got.properties ?? {})])) {
+        if (route.form && field === 'file') continue
+        try {
+          expect(got.properties?.[field]).toEqual(want.properties[field])
+        }
+        catch {
+          out.push(`${at}body field ${field}: document ${JSON.stringify(got.properties?.[field])} ≠ schema ${JSON.stringify(want.properties[field])}`)
+        }
       }
-      catch {
-        out.push(`body field ${field}: document ${JSON.stringify(body.properties?.[field])} ≠ schema ${JSON.stringify(want.properties[field])}`)
-      }
-    }
-    const required = (body.required ?? []).filter((f: string) => !(route.form && f === 'file')).sort()
-    if (JSON.stringify(required) !== JSON.stringify([...want.required ?? []].sort())) out.push(`required body fields: document ${required} ≠ schema ${want.required ?? []}`)
+      const required = (got.required ?? []).filter((f: string) => !(route.form && f === 'file')).sort()
+      if (JSON.stringify(required) !== JSON.stringify([...want.required ?? []].sort())) out.push(`${at}required body fields: document ${required} ≠ schema ${want.required ?? []}`)
+    })
   }
   const wantQuery = route.query ? input(route.query) : { properties: {}, required: [] }
   const names = new Set([...Object.keys(wantQuery.properties), ...query.map(p => p.name)])
@@ -207,20 +217,26 @@ describe('GET /api/v1/openapi.json', () => {
     // a check that can tell: a field the document would lack is reported
     const readings = apiRoutes.find(r => r.path === '/api/v1/builds/{build}/readings')!
     const broken = structuredClone(doc)
-    delete broken.components.schemas.ReadingCreate.properties.unit
-    broken.components.schemas.ReadingCreate.properties.values.maxItems = 5
+    delete broken.components.schemas.ReadingCreate.anyOf[0].properties.unit
+    broken.components.schemas.ReadingCreate.anyOf[0].properties.values.maxItems = 5
+    broken.components.schemas.ReadingCreate.anyOf[1].properties.u.minimum = -1
     expect(disagreements(broken, readings)).toEqual([
-      expect.stringContaining('body field values'),
-      expect.stringContaining('body field unit'),
+      expect.stringContaining('alternative 1, body field values'),
+      expect.stringContaining('alternative 1, body field unit'),
+      expect.stringContaining('alternative 2, body field u'),
     ])
   })
 
   it('keeps the limits, descriptions and examples of the shared schemas', () => {
-    const reading = doc.components.schemas.ReadingCreate
+    // a reading is samples or a stated result (value ± u)
+    const [reading, stated] = doc.components.schemas.ReadingCreate.anyOf
     expect(reading.required).toEqual(['revision', 'target', 'values', 'unit'])
     // the sample limit is shared/utils/readingStats.ts's MAX_SAMPLES
     expect(reading.properties.values).toMatchObject({ type: 'array', minItems: 1, maxItems: 10_000, description: expect.stringContaining('numeric strings are refused') })
     expect(reading.examples[0]).toMatchObject({ target: 'top_speed', unit: 'km/h' })
+    expect(stated.required).toEqual(['revision', 'target', 'value', 'u', 'unit'])
+    expect(stated.properties.u).toMatchObject({ type: 'number', minimum: 0, description: expect.stringContaining('standard uncertainty') })
+    expect(stated.properties.dof.description).toContain('infinite')
     expect(doc.components.schemas.TargetCreate.properties.formula.description).toContain('derived target')
     expect(doc.components.schemas.Move.properties.lane.enum).toEqual(['spotted', 'traced', 'bench', 'retest', 'closed', 'parked'])
     expect(doc.components.schemas.FindingCreate.properties.severity.enum).toEqual(['safety', 'blocks-target', 'degrades', 'cosmetic'])

@@ -130,7 +130,10 @@ describe('the findings board in Chromium', () => {
     // (the server's answer is held back until the user has gone on to another card: focus stays there)
     let release!: () => void
     const held = new Promise<void>((resolve) => { release = resolve })
-    await page.route(`**/api/v1/findings/${ids.keys}/move`, async (route) => { await held; await route.continue() })
+    await page.route(`**/api/v1/findings/${ids.keys}/move`, async (route) => {
+      await held
+      await route.continue()
+    })
     const parked = page.waitForResponse(r => r.url().includes(`/api/v1/findings/${ids.keys}/move`))
     await page.locator('[data-testid="card-to-parked"]').click()
     await page.waitForFunction(id => Boolean(document.querySelector(`[data-testid="lane-list-parked"] [data-card-id="${id}"]`)), ids.keys)

@@ -3,7 +3,7 @@ import type { HistoryEntry, ScoreTarget } from '../../shared/types/api'
 /** One revision's pooled statistics; pass what the test is about. */
 export function makeEntry(overrides: Partial<HistoryEntry> = {}): HistoryEntry {
   return {
-    revision: 'R1', readings: 1, status: 'met', n: 5, mean: 24.5, sd: 0.2, uA: 0.09, uB: null, u: 0.09, nuEff: 4,
+    revision: 'R1', readings: 1, stated: 0, status: 'met', n: 5, mean: 24.5, sd: 0.2, uA: 0.09, uB: null, u: 0.09, nuEff: 4,
     ci95: [24.25, 24.75], delta: null, p: null, movement: null, real: null, reason: null,
     ...overrides,
   }

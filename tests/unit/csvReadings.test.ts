@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvRow } from '../../shared/utils/csvReadings'
+import { MAX_STATED_ROWS, parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvRow } from '../../shared/utils/csvReadings'
 
 const rows = (...lines: string[][]): CsvRow[] => lines.map((cells, i) => ({ line: i + 2, cells }))
 
@@ -89,5 +89,44 @@ describe('planCsvImport', () => {
     expect(planCsvImport(['a'], rows(['1']), { value: 'b' }, defaults).problems[0]!.message).toBe('The header has no column "b" (the value column)')
     expect(planCsvImport(['a'], rows(['1']), { value: 'a' }, { ...defaults, unit: 'kg' }).problems[0]!.message).toMatch(/^Unit: "kg" is a mass unit/)
     expect(planCsvImport(['a'], [], { value: 'a' }, defaults).problems[0]!.message).toBe('The file has a header but no rows')
+  })
+})
+
+describe('planCsvImport with stated results (u and dof columns)', () => {
+  const header = ['value', 'u', 'dof']
+  const defaults = { targetUnit: 'N', revision: 'R1', unit: 'N' }
+  const columns = { value: 'value', u: 'u', dof: 'dof' }
+
+  it('a row with a u is a reading of its own; blank u rows are samples; blank dof is infinite', () => {
+    const plan = planCsvImport(header, rows(['10.1', '', ''], ['10.4', '0.2', '7'], ['10.2', '', ''], ['10,3', '0,1', ''], ['9.9', '0', '']), columns, { ...defaults, decimalComma: true })
+    expect(plan.problems).toEqual([])
+    expect(plan.groups).toEqual([
+      { revision: 'R1', unit: 'N', values: [10.1, 10.2], takenAt: null, firstLine: 2, lastLine: 4 },
+      { revision: 'R1', unit: 'N', values: [10.4], takenAt: null, firstLine: 3, lastLine: 3, stated: { u: 0.2, dof: 7 } },
+      { revision: 'R1', unit: 'N', values: [10.3], takenAt: null, firstLine: 5, lastLine: 5, stated: { u: 0.1, dof: null } },
+      { revision: 'R1', unit: 'N', values: [9.9], takenAt: null, firstLine: 6, lastLine: 6, stated: { u: 0, dof: null } },
+    ])
+  })
+
+  it('names the line of a bad u, a bad dof, or a dof without u; imports nothing', () => {
+    const plan = planCsvImport(header, rows(['1', '-0.1', ''], ['2', 'x', ''], ['3', '0.1', '0'], ['4', '0.1', 'many'], ['5', '', '3']), columns, defaults)
+    expect(plan.groups).toEqual([])
+    expect(plan.problems.map(p => p.line)).toEqual([2, 3, 4, 5, 6])
+    expect(plan.problems[0]!.message).toBe('Line 2: "-0.1" in column "u" is not a standard uncertainty (a number ≥ 0)')
+    expect(plan.problems[2]!.message).toMatch(/^Line 4: "0" in column "dof" is not a number of degrees of freedom/)
+    expect(plan.problems[4]!.message).toBe('Line 6: degrees of freedom without a standard uncertainty in column "u"')
+  })
+
+  it('a dof column needs a u column; a u column the header lacks is named', () => {
+    expect(planCsvImport(header, rows(['1', '', '']), { value: 'value', dof: 'dof' }, defaults).problems[0]!.message).toMatch(/degrees-of-freedom column goes with/)
+    expect(planCsvImport(header, rows(['1', '', '']), { value: 'value', u: 'sigma' }, defaults).problems[0]!.message).toBe('The header has no column "sigma" (the standard uncertainty column)')
+  })
+
+  it(`takes at most ${MAX_STATED_ROWS} stated results per file (each is a reading of its own)`, () => {
+    const many = Array.from({ length: MAX_STATED_ROWS + 1 }, (_, i) => [String(10 + i / 1000), '0.1', ''])
+    const plan = planCsvImport(header, rows(...many), columns, defaults)
+    expect(plan.groups).toEqual([])
+    expect(plan.problems).toEqual([{ line: MAX_STATED_ROWS + 2, message: `Line ${MAX_STATED_ROWS + 2}: a file holds at most 1,000 stated results (rows with a u); split the file` }])
+    expect(planCsvImport(header, rows(...many.slice(1)), columns, defaults).groups).toHaveLength(MAX_STATED_ROWS)
   })
 })

@@ -22,14 +22,36 @@ export async function uniqueSlug(db: Db, table: 'teams' | 'builds', base: string
   }
 }
 
-export async function createTeam(trx: Knex.Transaction, p: { name: string, slug?: string, ownerId: string, personal?: boolean }) {
-  const slug = p.slug
-    ? p.slug
-    : await uniqueSlug(trx, 'teams', slugify(p.name))
-  if (p.slug && await trx('teams').where({ slug }).first('id')) {
-    throw createError({ statusCode: 409, message: `The address "${slug}" is taken; choose another`, data: { fields: { slug: 'Taken' } } })
+/**
+ * Inserts a row of `table` under `slug`, or, without one, under a fresh slug made from `base`
+ * (base, base-2 …). A slug that a concurrent insert takes between the look and the insert is a
+ * 409 when it was asked for, and otherwise skipped for the next free one, never a 500:
+ * ON CONFLICT DO NOTHING waits for the other transaction and then inserts nothing.
+ */
+export async function insertWithSlug<T>(
+  trx: Knex.Transaction,
+  table: 'teams' | 'builds',
+  p: { slug?: string, base: string, row: Record<string, unknown>, returning: string[], taken: string },
+): Promise<T> {
+  const refuse = (slug: string) => createError({ statusCode: 409, message: p.taken.replace('%s', slug), data: { fields: { slug: 'Taken' } } })
+  for (let attempt = 0; attempt < 5; attempt++) {
+    const slug = p.slug ?? await uniqueSlug(trx, table, p.base)
+    if (p.slug && await trx(table).where({ slug }).first('id')) throw refuse(slug)
+    const [row] = await trx(table).insert({ ...p.row, slug }).onConflict('slug').ignore().returning(p.returning)
+    if (row) return row as T
+    if (p.slug) throw refuse(slug)
   }
-  const team = theRow(await trx('teams').insert({ name: p.name, slug, personal: p.personal ?? false }).returning(['id', 'name', 'slug', 'personal']))
+  throw createError({ statusCode: 409, message: 'Others are creating the same name right now; try again' })
+}
+
+export async function createTeam(trx: Knex.Transaction, p: { name: string, slug?: string, ownerId: string, personal?: boolean }) {
+  const team = await insertWithSlug<{ id: string, name: string, slug: string, personal: boolean }>(trx, 'teams', {
+    slug: p.slug,
+    base: slugify(p.name),
+    row: { name: p.name, personal: p.personal ?? false },
+    returning: ['id', 'name', 'slug', 'personal'],
+    taken: 'The address "%s" is taken; choose another',
+  })
   await trx('memberships').insert({ team_id: team.id, user_id: p.ownerId, role: 'owner' })
   return team
 }

@@ -43,7 +43,7 @@ const targetStatus = z.enum(['met', 'marginal', 'short', 'untested'])
 const movementReason = z.enum(['welch', 'noise-band', 'uncertainty', 'not-enough-data'])
 const movementShape = {
   delta: nullableNumber('mean − the other revision’s mean; null when a side has no value'),
-  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2'),
+  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2 (or either holds a stated result: the test on both sides’ u and ν_eff)'),
   movement: z.enum(['gained', 'slipped', 'steady']).nullable(),
   real: z.boolean().nullable(),
   reason: described(movementReason.nullable(), 'the rule that decided'),
@@ -117,8 +117,10 @@ export const RevisionOut = z.object({
   createdAt: z.string(),
 })
 
+const readingKind = described(z.enum(['samples', 'stated']), '`samples`: values measured here; `stated`: one result with its own standard uncertainty u (and ν)')
+
 export const ReadingCreatedOut = z.object({
-  reading: z.object({ id: z.string(), ...statsShape, unit: z.string(), status: measuredStatus }),
+  reading: z.object({ id: z.string(), kind: readingKind, ...statsShape, unit: z.string(), status: measuredStatus }),
   pooled: described(
     z.object({ ...statsShape, readings: z.int(), status: measuredStatus }).nullable(),
     'the pooled statistics of all readings of the target on the revision, when there is more than one',
@@ -128,10 +130,11 @@ export const ReadingCreatedOut = z.object({
 export const HistoryEntryOut = z.object({
   revision: z.string(),
   readings: described(z.int(), 'readings pooled'),
+  stated: described(z.int(), 'how many of them are stated results; with any, the cell combines the results by inverse-variance weighting (sd, uA, uB are null)'),
   ...statsShape,
   status: measuredStatus,
   delta: nullableNumber('mean − the previous revision’s mean; null on the first'),
-  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2'),
+  p: nullableNumber('two-sided p of Welch’s test, when both sides have n ≥ 2 (or either holds a stated result: the test on both sides’ u and ν_eff)'),
   movement: z.enum(['gained', 'slipped', 'steady']).nullable(),
   real: z.boolean().nullable(),
   reason: described(
@@ -188,6 +191,7 @@ export const TargetOrderOut = z.object({ keys: described(z.array(z.string()), 't
 
 export const ReadingDetailOut = z.object({
   id: z.string(),
+  kind: readingKind,
   revision: z.string(),
   n: described(z.int(), 'number of samples'),
   stats: described(z.object(statsShape), 'the statistics of this reading alone, in the display unit'),
@@ -198,6 +202,9 @@ export const ReadingDetailOut = z.object({
   method: z.string(),
   resolutionEntered: z.number().nullable(),
   resolution: nullableNumber('in the display unit'),
+  uEntered: nullableNumber('a stated result’s standard uncertainty as entered, in unitEntered; null for samples'),
+  u: nullableNumber('the same in the display unit'),
+  dof: nullableNumber('a stated result’s degrees of freedom; null: infinite (or a samples reading)'),
   takenAt: z.string(),
   by: described(z.string().nullable(), 'who recorded it (a person’s name, or the rig token’s label)'),
   rig: described(z.boolean(), 'recorded with a rig token'),
@@ -410,8 +417,8 @@ export const CsvPreviewOut = z.object({
   rows: described(z.array(z.object({ line: z.int(), cells: z.array(z.string()) })), 'the first rows, as text'),
   totalRows: z.int(),
   guess: described(
-    z.object({ value: z.string().nullable(), unit: z.string().nullable(), time: z.string().nullable(), revision: z.string().nullable() }),
-    'the columns that look like values, units, times and revisions',
+    z.object({ value: z.string().nullable(), unit: z.string().nullable(), time: z.string().nullable(), revision: z.string().nullable(), u: z.string().nullable(), dof: z.string().nullable() }),
+    'the columns that look like values, units, times and revisions, and like standard uncertainties and degrees of freedom (stated results)',
   ),
   problem: described(z.string().nullable(), 'set when the file can’t be imported as it is (too large, not text)'),
 })

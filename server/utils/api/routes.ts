@@ -178,7 +178,9 @@ export const apiRoutes: ApiRoute[] = [
     path: '/api/v1/builds/{build}/readings',
     tag: 'Revisions and readings',
     summary: 'Record a reading; its statistics come back in the target’s display unit',
-    description: 'Several readings of one target on one revision are pooled into one sample set. 404 for a target or revision not in the build; 409 for a frozen revision, an archived target or a derived target (it takes no readings); 422 for an unknown unit or one of another quantity.',
+    description: 'The body is samples (`values`) or a stated result (`value`, its standard uncertainty `u` and optionally `dof`; interval value ± t(0.975, dof)·u). '
+      + 'Several readings of one target on one revision are pooled into one sample set; with stated results, the sample set and each stated result are combined by inverse-variance weighting (ν by Welch–Satterthwaite). '
+      + '400 for a body with both `values` and `value`, or a `u` that is negative or not a number; 404 for a target or revision not in the build; 409 for a frozen revision, an archived target or a derived target (it takes no readings); 422 for an unknown unit or one of another quantity.',
     access: 'session-or-rig',
     params: build,
     body: ReadingBody,

@@ -25,13 +25,14 @@ export async function listVisibleBuilds(db: Db, viewer: { userId: string } | { b
 export async function createBuild(db: Db, actor: Actor, input: { team: Pick<TeamRow, 'id' | 'slug'>, body: z.output<typeof BuildBody> }) {
   const { team, body } = input
   const build = await db.transaction(async (trx) => {
-    const slug = body.slug ?? await uniqueSlug(trx, 'builds', slugify(body.name))
-    if (body.slug && await trx('builds').where({ slug }).first('id')) {
-      throw createError({ statusCode: 409, message: `A build with the slug "${slug}" exists; choose another`, data: { fields: { slug: 'Taken' } } })
-    }
-    const [build] = await trx('builds').insert({ team_id: team.id, name: body.name, slug, summary: body.summary ?? '', created_by: actor.userId })
-      .returning(['id', 'name', 'slug', 'summary', 'created_at as createdAt'])
-    await recordAudit(trx, actor, { action: 'build.created', teamId: team.id, detail: { build: slug } })
+    const build = await insertWithSlug<{ id: string, name: string, slug: string, summary: string, createdAt: Date }>(trx, 'builds', {
+      slug: body.slug,
+      base: slugify(body.name),
+      row: { team_id: team.id, name: body.name, summary: body.summary ?? '', created_by: actor.userId },
+      returning: ['id', 'name', 'slug', 'summary', 'created_at as createdAt'],
+      taken: 'A build with the slug "%s" exists; choose another',
+    })
+    await recordAudit(trx, actor, { action: 'build.created', teamId: team.id, detail: { build: build.slug } })
     return build
   })
   return { ...build, teamId: team.id, teamSlug: team.slug }

@@ -140,7 +140,7 @@ export async function previewCsv(db: Db, buildId: string, fileId: string): Promi
     }
     catch (err) {
       if ((err as { statusCode?: number }).statusCode !== 422) throw err
-      return { ...base, delimiter: ',', headerLine: 1, columns: [], rows: [], totalRows: 0, guess: { value: null, unit: null, time: null, revision: null }, problem: (err as Error).message }
+      return { ...base, delimiter: ',', headerLine: 1, columns: [], rows: [], totalRows: 0, guess: { value: null, unit: null, time: null, revision: null, u: null, dof: null }, problem: (err as Error).message }
     }
     return { ...base, ...await inWorker<CsvPreviewParsed>({ kind: 'preview', bytes }) }
   }
@@ -167,7 +167,7 @@ export async function importCsv(db: Db, actor: Actor, input: { build: Pick<Build
     planned = await inWorker<CsvPlanned>({
       kind: 'plan',
       bytes: await readStoredBytes(file),
-      columns: { value: body.valueColumn, unit: body.unitColumn, time: body.timeColumn, revision: body.revisionColumn },
+      columns: { value: body.valueColumn, unit: body.unitColumn, time: body.timeColumn, revision: body.revisionColumn, u: body.uColumn, dof: body.dofColumn },
       defaults: { revision: body.revision, unit: body.unit, targetUnit: target.unit },
     })
   }
@@ -205,17 +205,22 @@ export async function importCsv(db: Db, actor: Actor, input: { build: Pick<Build
     if (!free) throw createError({ statusCode: 409, message: `"${file.name}" was imported already`, data: { fields: { file: 'Imported already' } } })
     const out: CsvImported['readings'] = []
     for (const g of plan.groups) {
-      const resolution = body.resolution ? diffFromSI(diffToSI(body.resolution, resolutionUnit), g.unit) : null
-      const created = await insertReading(trx, actor, { buildId: build.id, body: {
+      const common = {
         revision: g.revision,
         target: target.key,
-        values: g.values,
         unit: g.unit,
         method,
-        resolution,
         takenAt: g.takenAt ?? undefined,
-        notes: `Imported from ${file.name}, lines ${g.firstLine}–${g.lastLine}`,
-      } })
+        notes: g.stated ? `Imported from ${file.name}, line ${g.firstLine}` : `Imported from ${file.name}, lines ${g.firstLine}–${g.lastLine}`,
+      }
+      // a stated result carries its own uncertainty: the instrument resolution is for samples
+      const created = g.stated
+        ? await insertReading(trx, actor, { buildId: build.id, body: { ...common, value: g.values[0]!, u: g.stated.u, dof: g.stated.dof } })
+        : await insertReading(trx, actor, { buildId: build.id, body: {
+            ...common,
+            values: g.values,
+            resolution: body.resolution ? diffFromSI(diffToSI(body.resolution, resolutionUnit), g.unit) : null,
+          } })
       out.push({ ...created, revision: g.revision, unitEntered: g.unit, n: g.values.length, firstLine: g.firstLine, lastLine: g.lastLine })
     }
     const first = (await trx('readings').where({ id: out[0]!.reading.id }).first('revision_id'))!
@@ -230,7 +235,12 @@ export async function importCsv(db: Db, actor: Actor, input: { build: Pick<Build
   return { file: { id: file.id, name: file.name }, rows: plan.rows, readings }
 }
 
-export const READINGS_CSV_COLUMNS = ['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method']
+/**
+ * The readings export's columns. The first eleven are those of every earlier version, in the same
+ * order; kind, u, u_si and dof were added for stated results (u and dof blank for samples, dof
+ * blank when infinite). Importing the file with the u and dof columns gives the readings back.
+ */
+export const READINGS_CSV_COLUMNS = ['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method', 'kind', 'u', 'u_si', 'dof']
 
 const unparse = (rows: unknown[][]) => Papa.unparse(rows, { escapeFormulae: true, newline: '\r\n' })
 
@@ -246,7 +256,8 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
       const batch = ids.slice(i, i + 200)
       const found = await db('readings as rd').join('targets as t', 't.id', 'rd.target_id').join('revisions as rv', 'rv.id', 'rd.revision_id')
         .whereIn('rd.id', batch)
-        .select('rd.id', 't.key', 't.quantity', 'rv.label', 'rd.values_entered', 'rd.values_si', 'rd.unit_entered', 'rd.taken_at', 'rd.method') as {
+        .select('rd.id', 't.key', 't.quantity', 'rv.label', 'rd.values_entered', 'rd.values_si', 'rd.unit_entered', 'rd.taken_at', 'rd.method',
+          'rd.stated_u_entered', 'rd.stated_u_si', 'rd.stated_dof') as {
         id: string
         key: string
         quantity: Quantity
@@ -256,6 +267,9 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
         unit_entered: string
         taken_at: Date
         method: string
+        stated_u_entered: number | null
+        stated_u_si: number | null
+        stated_dof: number | null
       }[]
       const byId = new Map(found.map(r => [r.id, r]))
       const lines: unknown[][] = []
@@ -263,7 +277,8 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
         const r = byId.get(id)
         if (!r) continue
         const at = new Date(r.taken_at).toISOString()
-        r.values_entered.forEach((v, k) => lines.push([build.slug, r.key, r.label, r.id, k + 1, v, r.unit_entered, r.values_si[k], siUnitOf(r.quantity), at, r.method]))
+        const stated = r.stated_u_si === null ? ['samples', null, null, null] : ['stated', r.stated_u_entered, r.stated_u_si, r.stated_dof]
+        r.values_entered.forEach((v, k) => lines.push([build.slug, r.key, r.label, r.id, k + 1, v, r.unit_entered, r.values_si[k], siUnitOf(r.quantity), at, r.method, ...stated]))
       }
       if (lines.length) yield `${unparse(lines)}\r\n`
     }

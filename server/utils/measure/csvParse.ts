@@ -74,6 +74,8 @@ export function parseCsvText(raw: string): ParsedCsv {
 }
 
 const LOOKS_LIKE_INDEX = /^(#|no\.?|n|index|idx|sample|row|id|line)$/i
+const LOOKS_LIKE_U = /^(u|std_?unc(ertainty)?|standard[ _]uncertainty|uncertainty)$/i
+const LOOKS_LIKE_DOF = /^(dof|df|nu|ν|degrees[ _]of[ _]freedom)$/i
 
 export type CsvPreviewParsed = Omit<CsvPreview, 'file'>
 
@@ -87,7 +89,9 @@ export function previewCsvBytes(bytes: Uint8Array): CsvPreviewParsed {
   }
   const decimalComma = parsed.delimiter !== ','
   const time = column((n, cells) => /time|date|stamp/i.test(n) && cells.length > 0 && cells.every(c => parseTimeCell(c) !== null))
-  const value = column((n, cells) => n !== time && !LOOKS_LIKE_INDEX.test(n) && !/time|date|stamp/i.test(n) && cells.length > 0 && cells.every(c => parseNumberCell(c, decimalComma) !== null))
+  const u = column(n => LOOKS_LIKE_U.test(n))
+  const dof = column(n => LOOKS_LIKE_DOF.test(n))
+  const value = column((n, cells) => n !== time && n !== u && n !== dof && !LOOKS_LIKE_INDEX.test(n) && !/time|date|stamp/i.test(n) && cells.length > 0 && cells.every(c => parseNumberCell(c, decimalComma) !== null))
   return {
     delimiter: parsed.delimiter,
     headerLine: parsed.headerLine,
@@ -99,6 +103,8 @@ export function previewCsvBytes(bytes: Uint8Array): CsvPreviewParsed {
       time,
       unit: column(n => /^units?$/i.test(n)),
       revision: column(n => /^rev(ision)?$/i.test(n)),
+      u,
+      dof,
     },
     problem: parsed.header.length === 0 ? 'The file is empty' : null,
   }

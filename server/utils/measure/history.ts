@@ -40,6 +40,7 @@ function derivedEntry(point: Extract<DerivedPoint, { kind: 'value' }>, revision:
   return {
     revision,
     readings: 0,
+    stated: 0,
     ...cellInUnit(point.cell, unit),
     status: d.status,
     delta: d.delta === null ? null : d.delta / unit.factor,

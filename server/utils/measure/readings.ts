@@ -3,8 +3,8 @@ import type { Knex } from 'knex'
 import type { z } from 'zod'
 import type { ReadingCreated, ReadingDetail } from '../../../shared/types/api'
 import { cellFromStats, cellInUnit, cellStatus } from '../../../shared/utils/cellStats'
-import type { ReadingBody } from '../../../shared/utils/readingSchemas'
-import { MAX_SAMPLES, StatsOverflowError, computeStats } from '../../../shared/utils/readingStats'
+import { isStatedBody, type ReadingBody } from '../../../shared/utils/readingSchemas'
+import { MAX_SAMPLES, StatsOverflowError, computeStats, statedStats } from '../../../shared/utils/readingStats'
 import { assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI } from '../../../shared/utils/units'
 import type { ReadingRow, TargetRow } from '../../db/tables'
 import type { Actor } from '../audit'
@@ -14,23 +14,23 @@ import { cellOfRow, refreshCell, statsColumns } from './statsCache'
 import { trackTargetEvents } from './targetEvents'
 import { cellTargetOf, findTarget, unitProblem } from './targets'
 
-// Readings: the samples of one target on one revision. Plain Knex with the connection passed
+// Readings: the samples (or one stated result, value ± u) of one target on one revision. Plain Knex with the connection passed
 // in (the seed uses it too). Each write re-pools the cell and re-decides the target in the same
 // transaction, holding the target's row lock, so the cached statistics never disagree.
 
-/** Statistics that overflow double precision (the reading's, its cell's, a movement's) as a 422 naming the values. */
-async function statsOr422<T>(work: () => Promise<T>): Promise<T> {
+/** Statistics that overflow double precision (the reading's, its cell's, a movement's) as a 422 naming the values (or a stated value). */
+async function statsOr422<T>(work: () => Promise<T>, field = 'values'): Promise<T> {
   try {
     return await work()
   }
   catch (e) {
     if (!(e instanceof StatsOverflowError)) throw e
-    throw createError({ statusCode: 422, message: `values: ${e.message}`, data: { fields: { values: 'Statistics overflow' } } })
+    throw createError({ statusCode: 422, message: `${field}: ${e.message}`, data: { fields: { [field]: 'Statistics overflow' } } })
   }
 }
 
-function tooLarge(): never {
-  throw createError({ statusCode: 400, message: 'values: The values are too large to compute with in SI', data: { fields: { values: 'Too large' } } })
+function tooLarge(field = 'values'): never {
+  throw createError({ statusCode: 400, message: `${field}: The ${field === 'values' ? 'values are' : `${field} is`} too large to compute with in SI`, data: { fields: { [field]: 'Too large' } } })
 }
 
 /**
@@ -39,7 +39,7 @@ function tooLarge(): never {
  * MAX_SAMPLES values, 422 for a unit of another quantity or statistics that overflow.
  */
 export async function insertReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
-  return await statsOr422(() => recordReading(trx, actor, input))
+  return await statsOr422(() => recordReading(trx, actor, input), isStatedBody(input.body) ? 'value' : 'values')
 }
 
 async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
@@ -64,28 +64,38 @@ async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' 
   }
   // the readings of a cell are pooled into one sample set, which holds at most MAX_SAMPLES values
   const held = (await trx('readings').where({ target_id: target.id, revision_id: revision.id }).sum({ n: 'n' }).first())?.n ?? 0
-  if (Number(held) + body.values.length > MAX_SAMPLES) {
+  const stated = isStatedBody(body) ? body : null
+  const samples = isStatedBody(body) ? null : body
+  const entered = stated ? [stated.value] : samples!.values
+  if (Number(held) + entered.length > MAX_SAMPLES) {
     throw createError({
       statusCode: 409,
       message: `values: Revision ${revision.label} already holds ${Number(held).toLocaleString('en')} values of "${target.key}"; the readings of one target on one revision hold at most ${MAX_SAMPLES.toLocaleString('en')} values together`,
       data: { fields: { values: 'Too many values for this revision' } },
     })
   }
-  const valuesSI = body.values.map(v => toSI(v, units.entered))
-  const resolutionSI = body.resolution ? diffToSI(body.resolution, units.entered) : null
-  if (!valuesSI.every(Number.isFinite) || (resolutionSI !== null && !Number.isFinite(resolutionSI))) tooLarge()
-  const stats = computeStats(valuesSI, resolutionSI)
-  if (![stats.mean, stats.sd ?? 0, stats.u ?? 0, ...(stats.ci95 ?? [])].every(Number.isFinite)) tooLarge()
+  const valuesSI = entered.map(v => toSI(v, units.entered))
+  const resolution = samples?.resolution ?? null
+  const resolutionSI = resolution ? diffToSI(resolution, units.entered) : null
+  if (!valuesSI.every(Number.isFinite) || (resolutionSI !== null && !Number.isFinite(resolutionSI))) tooLarge(stated ? 'value' : 'values')
+  // a stated u is a difference: it converts with the unit's factor only (no offset)
+  const uSI = stated ? diffToSI(stated.u, units.entered) : null
+  if (uSI !== null && !Number.isFinite(uSI)) tooLarge('u')
+  const stats = stated ? statedStats(valuesSI[0]!, uSI!, stated.dof ?? null) : computeStats(valuesSI, resolutionSI)
+  if (![stats.mean, stats.sd ?? 0, stats.u ?? 0, ...(stats.ci95 ?? [])].every(Number.isFinite)) tooLarge(stated ? 'u' : 'values')
 
   const [row] = await trx('readings').insert({
     target_id: target.id,
     revision_id: revision.id,
     values_si: valuesSI,
-    values_entered: body.values,
+    values_entered: entered,
     unit_entered: units.entered.unit,
     method: body.method ?? '',
     resolution_si: resolutionSI,
-    resolution_entered: body.resolution ?? null,
+    resolution_entered: resolution,
+    stated_u_si: uSI,
+    stated_u_entered: stated ? stated.u : null,
+    stated_dof: stated ? (stated.dof ?? null) : null,
     ...statsColumns(cellFromStats(stats)),
     taken_at: body.takenAt ?? trx.fn.now(),
     taken_by: actor.userId,
@@ -98,7 +108,7 @@ async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' 
   const display = units.target
   const own = cellFromStats(stats)
   return {
-    reading: { id: row!.id, unit: display.unit, ...cellInUnit(own, display), status: cellStatus(own, rule) },
+    reading: { id: row!.id, kind: stated ? 'stated' : 'samples', unit: display.unit, ...cellInUnit(own, display), status: cellStatus(own, rule) },
     pooled: cell && cell.readings > 1
       ? { ...cellInUnit(cellOfRow(cell), display), readings: cell.readings, status: cell.status }
       : null,
@@ -132,6 +142,7 @@ export function readingDetail(r: ReadingRow & { revision_label: string, by_user:
   const rule = cellTargetOf(target)
   return {
     id: r.id,
+    kind: r.stated_u_si === null ? 'samples' : 'stated',
     revision: r.revision_label,
     n: r.n,
     stats: cellInUnit(cell, unit),
@@ -142,6 +153,9 @@ export function readingDetail(r: ReadingRow & { revision_label: string, by_user:
     method: r.method,
     resolutionEntered: r.resolution_entered,
     resolution: r.resolution_si === null ? null : diffFromSI(r.resolution_si, unit),
+    uEntered: r.stated_u_entered,
+    u: r.stated_u_si === null ? null : diffFromSI(r.stated_u_si, unit),
+    dof: r.stated_dof,
     takenAt: new Date(r.taken_at).toISOString(),
     by: r.by_user ?? (r.by_rig ? `rig token ${r.by_rig}` : null),
     rig: r.rig_token_id !== null,

@@ -18,7 +18,7 @@ import { findTarget, targetView } from './targets'
 
 interface BuildRef { id: string, slug: string, name: string, summary: string, team_id: string, archived_at: Date | null }
 
-const CELL_COLUMNS = ['target_id', 'revision_id', 'readings', 'n', 'mean', 'sd', 'u_a', 'u_b', 'u', 'nu_eff', 'ci_low', 'ci_high', 'status', 'delta', 'p', 'movement', 'real', 'reason']
+const CELL_COLUMNS = ['target_id', 'revision_id', 'readings', 'stated', 'n', 'mean', 'sd', 'u_a', 'u_b', 'u', 'nu_eff', 'ci_low', 'ci_high', 'status', 'delta', 'p', 'movement', 'real', 'reason']
 
 /** Status, latest entry, margin and forecast of a target from its history (oldest first). */
 function standing(t: TargetRow, history: HistoryEntry[], revisions: string[]) {

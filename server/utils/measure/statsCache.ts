@@ -18,8 +18,8 @@ export interface CellTarget extends SiRule {
  * The statistics of a stored row in SI: a cell of cell_stats, or one reading (readings has the
  * same columns, and counts as one reading).
  */
-export function cellOfRow(r: StatsRow & { readings?: number }): CellStats {
-  return { readings: r.readings ?? 1, n: r.n, mean: r.mean, sd: r.sd, uA: r.u_a, uB: r.u_b, u: r.u, nuEff: r.nu_eff, ciLow: r.ci_low, ciHigh: r.ci_high }
+export function cellOfRow(r: StatsRow & { readings?: number, stated?: number }): CellStats {
+  return { readings: r.readings ?? 1, stated: r.stated ?? 0, n: r.n, mean: r.mean, sd: r.sd, uA: r.u_a, uB: r.u_b, u: r.u, nuEff: r.nu_eff, ciLow: r.ci_low, ciHigh: r.ci_high }
 }
 
 /** The columns of statistics in SI, for a row of readings or of cell_stats. */
@@ -28,7 +28,7 @@ export function statsColumns(c: Omit<CellStats, 'readings'>): StatsRow {
 }
 
 export function cellRowOf(target: CellTarget, revisionId: string, c: CellStats, d: CellDecision): CellRow {
-  return { target_id: target.id, revision_id: revisionId, build_id: target.buildId, readings: c.readings, ...statsColumns(c), ...decisionColumns(d) }
+  return { target_id: target.id, revision_id: revisionId, build_id: target.buildId, readings: c.readings, stated: c.stated ?? 0, ...statsColumns(c), ...decisionColumns(d) }
 }
 
 function decisionColumns(d: CellDecision) {
@@ -40,6 +40,7 @@ export function historyEntryOf(r: CellRow, revision: string, unit: UnitInfo): Hi
   return {
     revision,
     readings: r.readings,
+    stated: r.stated,
     ...cellInUnit(cellOfRow(r), unit),
     status: r.status,
     delta: r.delta === null ? null : r.delta / unit.factor,
@@ -57,12 +58,12 @@ export function historyEntryOf(r: CellRow, revision: string, unit: UnitInfo): Hi
  */
 export async function refreshCell(trx: Db, target: CellTarget, revisionId: string): Promise<CellRow | null> {
   const readings = await trx('readings').where({ target_id: target.id, revision_id: revisionId })
-    .select('values_si', 'resolution_si')
+    .select('values_si', 'resolution_si', 'stated_u_si', 'stated_dof')
   if (readings.length === 0) {
     await trx('cell_stats').where({ target_id: target.id, revision_id: revisionId }).delete()
   }
   else {
-    const cell = poolCell(readings.map(r => ({ values: r.values_si, resolution: r.resolution_si })))
+    const cell = poolCell(readings.map(r => ({ values: r.values_si, resolution: r.resolution_si, u: r.stated_u_si, dof: r.stated_dof })))
     // the decision columns are filled in by redecideTarget below
     const row = cellRowOf(target, revisionId, cell, { status: 'short', delta: null, p: null, movement: null, real: null, reason: null })
     await trx('cell_stats').insert(row).onConflict(['target_id', 'revision_id']).merge()
