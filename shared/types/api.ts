@@ -335,7 +335,8 @@ export interface TargetDesign {
     /** why there is no prediction on this revision */
     cantPredict: string | null
   }[]
-  calibration: { factor: number, u: number | null, revisions: string[], method: 'weighted' | 'plain' } | null
+  /** nu: the factor's effective degrees of freedom (Welch–Satterthwaite); null when infinite */
+  calibration: { factor: number, u: number | null, nu: number | null, revisions: string[], method: 'weighted' | 'plain' } | null
   /** the revision the sensitivity is taken on: the latest with a prediction */
   sensitivityRevision: string | null
   sensitivity: { parameter: string, elasticity: number | null, share: number }[]

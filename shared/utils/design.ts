@@ -300,6 +300,47 @@ export function sensitivityOf(prediction: Prediction): Sensitivity[] {
 }
 
 // ---------------------------------------------------------------------------------------
+// The calibrated prediction (the solver's and the what-if's)
+
+export interface CalibratedPrediction {
+  /** the model alone */
+  model: Prediction
+  /** F·f, in the target's display unit */
+  value: number
+  /** u² = (f·u_F)² + (F·u_f)² */
+  u: number
+  /** effective degrees of freedom: Welch–Satterthwaite over the factor's ν and the tolerances' ∞ */
+  nu: number
+  /** t(0.975, ν) */
+  k: number
+  /** value ± k·u; null when u = 0 (the value alone then decides the status) */
+  ci95: [number, number] | null
+}
+
+/**
+ * The calibrated prediction F·f on a revision's parameters (with `override` values in the
+ * parameters' own units): u² = (f·u_F)² + (F·u_f)² (GUM 5.1.2 eq. 10 on the product F·f),
+ * k = t(0.975, ν) with ν by Welch–Satterthwaite (GUM G.4.1) over the factor's ν and the
+ * tolerances' ∞ (GUM G.4.3). `factor` is {value: 1, u: 0} without a calibration.
+ */
+export function calibratedPrediction(
+  model: string,
+  parameters: readonly DesignParameter[],
+  targetUnit: string,
+  factor: { value: number, u: number, nu: number },
+  override?: Record<string, number>,
+): CalibratedPrediction {
+  const pr = predict(model, parameters, targetUnit, override)
+  const value = factor.value * pr.value
+  const uF = pr.value * factor.u
+  const uf = factor.value * pr.u
+  const u = Math.hypot(uF, uf)
+  const nu = u > 0 ? welchSatterthwaite([{ u: Math.abs(uF), nu: factor.nu }, { u: Math.abs(uf), nu: Infinity }]) : Infinity
+  const k = tQuantile(0.975, nu)
+  return { model: pr, value, u, nu, k, ci95: u > 0 ? [value - k * u, value + k * u] : null }
+}
+
+// ---------------------------------------------------------------------------------------
 // Solving for a parameter
 
 /**
@@ -425,14 +466,9 @@ export function solveFor(input: SolveInput): Solved {
   const useMargin = input.margin === '95' && !between
   const side = input.goal.comparator === 'atMost' ? 1 : -1
   const at = (x: number) => {
-    const pr = predict(input.model, input.parameters, input.targetUnit, { [p.key]: x })
-    const value = input.factor.value * pr.value
-    const uF = pr.value * input.factor.u
-    const uf = input.factor.value * pr.u
-    const u = Math.hypot(uF, uf)
-    const nu = u > 0 ? welchSatterthwaite([{ u: Math.abs(uF), nu: input.factor.nu }, { u: Math.abs(uf), nu: Infinity }]) : Infinity
-    const k = input.margin === '95' ? tQuantile(0.975, nu) : null
-    return { value, u, k, bound: k === null || !useMargin ? value : value + side * k * u }
+    const c = calibratedPrediction(input.model, input.parameters, input.targetUnit, input.factor, { [p.key]: x })
+    const k = input.margin === '95' ? c.k : null
+    return { value: c.value, u: c.u, k, bound: k === null || !useMargin ? c.value : c.value + side * k * c.u }
   }
   const g = (x: number) => {
     try {

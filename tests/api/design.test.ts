@@ -195,6 +195,9 @@ describe('design math beside the measurement', () => {
       const sw = 1 / u1 ** 2 + 1 / u2 ** 2
       expect(d.calibration.revisions).toEqual(['R1', 'R2'])
       expect(d.calibration.method).toBe('weighted')
+      // the factor's degrees of freedom come from the cells' (finite: each has a few samples)
+      expect(d.calibration.nu).toBeGreaterThan(1)
+      expect(Number.isFinite(d.calibration.nu)).toBe(true)
       expectRelClose(d.calibration.factor, (ratio1 / u1 ** 2 + ratio2 / u2 ** 2) / sw, 1e-8)
       expectRelClose(d.calibration.u, 1 / Math.sqrt(sw), 1e-8)
       // measured falls short of the model by a consistent factor

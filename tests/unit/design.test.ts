@@ -1,7 +1,8 @@
+import jStat from 'jstat'
 import { describe, expect, it } from 'vitest'
 import type { FormulaError } from '../../shared/utils/derived'
 import {
-  bisect, calibrate, calibrationNu, checkModel, DesignError, effectiveParameters, intervalHalfWidth, parameterKeyOf, predict,
+  bisect, calibrate, calibratedPrediction, calibrationNu, checkModel, DesignError, effectiveParameters, intervalHalfWidth, parameterKeyOf, predict,
   ratioOf, rootNear, samplesNeeded, sensitivityOf, solveFor, type DesignParameter,
 } from '../../shared/utils/design'
 import { tQuantile } from '../../shared/utils/readingStats'
@@ -205,6 +206,48 @@ describe('solver', () => {
     expect(e.message).toMatch(/^No value of "wheel_radius" between 0\.05 and 50000 mm makes the calibrated prediction reach 1000000 m\/s/)
     const notIn = thrown(() => solveFor({ model: 'motor_speed * wheel_radius', parameters: [...rim(50), param('ball_mass', 58, 'g')], parameter: 'ball_mass', targetUnit: 'm/s', goal: goal(18), factor: { value: 1, u: 0, nu: Infinity }, margin: 'none' })) as DesignError
     expect(notIn.code).toBe('unusable')
+  })
+})
+
+describe('calibrated prediction (the what-if)', () => {
+  // v = ω·r (OpenStax University Physics 1, eq. 10.4): 3000 rpm = 314.159… rad/s, r = 50 mm ± 0.5 mm
+  // (rectangular: u_r = 0.5/√3 mm, GUM 4.3.7), so f = 15.70796 m/s and u_f = ω·u_r.
+  // With F = 0.8, u(F) = 0.02 on ν = 8: u² = (f·u_F)² + (F·u_f)² (GUM 5.1.2 eq. 10 on F·f),
+  // ν by Welch–Satterthwaite (GUM G.4.1) with the tolerance part at ν = ∞ (G.4.3), k = t(0.975, ν)
+  // from jstat's Student t inverse.
+  const omega = 3000 * 2 * Math.PI / 60
+  const ps = [param('motor_speed', 3000, 'rpm'), param('wheel_radius', 50, 'mm', 0.5)]
+
+  it('F·f with u from the factor and the tolerances, and k from their effective degrees of freedom', () => {
+    const c = calibratedPrediction('motor_speed * wheel_radius', ps, 'm/s', { value: 0.8, u: 0.02, nu: 8 })
+    const f = omega * 0.05
+    const uf = omega * 0.0005 / Math.sqrt(3)
+    const a = f * 0.02
+    const b = 0.8 * uf
+    const u = Math.hypot(a, b)
+    const nu = u ** 4 / (a ** 4 / 8)
+    expect(c.model.value).toBeCloseTo(15.70796, 5)
+    expect(c.value).toBeCloseTo(0.8 * f, 12)
+    expect(c.u).toBeCloseTo(u, 12)
+    expect(c.nu).toBeCloseTo(nu, 8)
+    expect(c.k).toBeCloseTo(jStat.studentt.inv(0.975, nu), 8)
+    expect(c.ci95![0]).toBeCloseTo(0.8 * f - c.k * u, 10)
+    expect(c.ci95![1]).toBeCloseTo(0.8 * f + c.k * u, 10)
+  })
+
+  it('an override replaces a parameter in its own unit; no calibration and no tolerance give no interval', () => {
+    const c = calibratedPrediction('motor_speed * wheel_radius', [param('motor_speed', 3000, 'rpm'), param('wheel_radius', 50, 'mm')], 'km/h', { value: 1, u: 0, nu: Infinity }, { wheel_radius: 60 })
+    // 314.159 rad/s × 0.06 m = 18.8496 m/s = 67.8584 km/h (1 km/h = 1/3.6 m/s, NIST SP 811 B.8)
+    expect(c.value).toBeCloseTo(omega * 0.06 * 3.6, 10)
+    expect(c.u).toBe(0)
+    expect(c.ci95).toBeNull()
+  })
+
+  it('the solver’s answer is where the calibrated prediction meets the threshold', () => {
+    const factor = { value: 0.8, u: 0.02, nu: 8 }
+    const s = solveFor({ model: 'motor_speed * wheel_radius', parameters: ps, parameter: 'wheel_radius', targetUnit: 'm/s', goal: { comparator: 'atLeast', threshold: 18, thresholdHigh: null }, factor, margin: '95' })
+    const c = calibratedPrediction('motor_speed * wheel_radius', ps, 'm/s', factor, { wheel_radius: s.value })
+    expect(c.ci95![0]).toBeCloseTo(18, 8)
   })
 })
 

@@ -465,6 +465,7 @@ export const TargetDesignOut = z.object({
   calibration: described(z.object({
     factor: z.number(),
     u: z.number().nullable(),
+    nu: described(z.number().nullable(), 'the factor’s effective degrees of freedom (Welch–Satterthwaite over the cells’ ν_eff); null when infinite'),
     revisions: described(z.array(z.string()), 'the revisions with both a prediction and a measurement'),
     method: described(z.enum(['weighted', 'plain']), 'inverse-variance weighted mean of the ratios, or their plain mean when a ratio’s u is 0 or unknown'),
   }).nullable(), 'null when no revision has both'),

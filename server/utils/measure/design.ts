@@ -206,11 +206,12 @@ async function designState(db: Db, t: TargetRow): Promise<DesignState> {
     revisions.push({ revision: r.label, predicted, measured, ratio: ratio ? { value: tidyNumber(ratio.value), u: ratio.u === null ? null : tidyNumber(ratio.u) } : null, cantPredict })
   }
   const cal = calibrate(ratios)
+  const nu = cal ? calibrationNu(parts, cal) : Infinity
   return {
     rows,
     revisions,
-    calibration: cal ? { factor: tidyNumber(cal.factor), u: cal.u === null ? null : tidyNumber(cal.u), revisions: calibrated, method: cal.method } : null,
-    calibrationNu: cal ? calibrationNu(parts, cal) : Infinity,
+    calibration: cal ? { factor: tidyNumber(cal.factor), u: cal.u === null ? null : tidyNumber(cal.u), nu: Number.isFinite(nu) ? tidyNumber(nu) : null, revisions: calibrated, method: cal.method } : null,
+    calibrationNu: nu,
     sensitivityRevision: latest?.label ?? null,
     sensitivity: latest ? sensitivityOf(latest.prediction).map(s => ({ parameter: s.parameter, elasticity: s.elasticity === null ? null : tidyNumber(s.elasticity), share: tidyNumber(s.share) })) : [],
   }
