@@ -2,7 +2,7 @@ import jStat from 'jstat'
 import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { mustSucceed, type World } from '../support/api'
-import { ARTIFACTS, goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
+import { goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
 
 // The Design tab on a build made here through the API. The model is rim speed v = ω·r (OpenStax
 // University Physics 1, eq. 10.4), ω in rpm and r in mm (1 rpm = 2π/60 rad/s, NIST SP 811 B.8):
@@ -122,7 +122,6 @@ describe('the Design tab in Chromium', () => {
     await expect(text(page, '[data-testid="what-if-save-hint"]')).resolves.toBe('Creates R3 with R2 as its parent, setting wheel_radius; the rest is inherited.')
     await page.evaluate(() => window.scrollTo(0, 0))
     await screenshot(page, 'design-tab-light-1440')
-    await page.getByTestId('design-view').screenshot({ path: `${ARTIFACTS}/design-view-light-1440.png` })
 
     // saved as the next revision
     const created = page.waitForResponse(r => r.url().endsWith(`/builds/${w.build.slug}/revisions`) && r.request().method() === 'POST')
@@ -200,7 +199,6 @@ describe('the Design tab in Chromium', () => {
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390)
     await page.evaluate(() => window.scrollTo(0, 0))
     await screenshot(page, 'design-target-dark-390')
-    await page.getByTestId('target-design-section').screenshot({ path: `${ARTIFACTS}/design-section-dark-390.png` })
     // the Design section fits the phone's width: nothing in it reaches past 390 px outside a box that scrolls itself
     const sticksOut = await page.getByTestId('target-design-section').evaluate((section) => {
       const inScroller = (e: Element) => {
