@@ -2,7 +2,7 @@ import jStat from 'jstat'
 import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { mustSucceed, type World } from '../support/api'
-import { goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
+import { ARTIFACTS, goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
 
 // The Design tab on a build made here through the API. The model is rim speed v = ω·r (OpenStax
 // University Physics 1, eq. 10.4), ω in rpm and r in mm (1 rpm = 2π/60 rad/s, NIST SP 811 B.8):
@@ -173,11 +173,11 @@ describe('the Design tab in Chromium', () => {
     expect(plan.samplesNeeded).toBeGreaterThanOrEqual(2)
     await page.waitForFunction(n => document.querySelector('[data-testid="reading-plan-n"]')?.textContent === String(n), plan.samplesNeeded)
     await expect(text(page, '[data-testid="reading-plan-text"]')).resolves.toContain(`Take at least ${plan.samplesNeeded} samples to tell Met from Short here`)
+    await dialog.screenshot({ path: `${ARTIFACTS}/design-reading-plan.png` })
     // the frame has no reading on R1 yet: the route's reason instead
     await dialog.getByTestId('reading-target').selectOption('frame_mass')
     await dialog.getByTestId('reading-revision').selectOption('R1')
     await page.waitForFunction(() => document.querySelector('[data-testid="reading-plan-text"]')?.textContent?.includes('No reading of this target on R1 yet'))
-    await screenshot(page, 'design-reading-plan')
     await context.close()
   })
 
