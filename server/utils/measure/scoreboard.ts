@@ -3,6 +3,7 @@ import type { Role } from '../../../shared/utils/roles'
 import { marginOf, type TargetStatus } from '../../../shared/utils/conformance'
 import { forecastOfHistory } from '../../../shared/utils/forecast'
 import { comparison, fixesLanded, loadBuildState, moversOf } from './compare'
+import { effectiveParametersOf } from './design'
 import { formulaKeys } from './formulas'
 import { seriesOf, type TargetSeries } from './history'
 import type { CellRow, ReadingRow, RevisionRow, TargetRow } from '../../db/tables'
@@ -104,19 +105,22 @@ export async function buildTargetDetail(db: Db, build: BuildRef, role: Role, key
 }
 
 /**
- * GET /api/builds/:build/revisions/:label: the revision and its readings grouped by target,
+ * GET /api/builds/:build/revisions/:label: the revision with its effective design parameters (its own
+ * and those it inherits), its readings grouped by target,
  * derived values, what it moved against its parent, and the fixes that landed in it.
  */
 export async function buildRevisionDetail(db: Db, build: BuildRef, role: Role, rev: RevisionRow): Promise<RevisionDetail> {
-  const [state, readings, fixes] = await Promise.all([
+  const [state, readings, fixes, parameters] = await Promise.all([
     loadBuildState(db, build.id),
     readingsQuery(db).where('rd.revision_id', rev.id) as Promise<(ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null })[]>,
     fixesLanded(db, build.id, rev.id),
+    effectiveParametersOf(db, rev),
   ])
   const view = state.revisions.find(r => r.id === rev.id)!
   const parent = view.parent ? state.revisions.find(r => r.label === view.parent) ?? null : null
   return {
     ...view,
+    parameters,
     build: { id: build.id, slug: build.slug, name: build.name },
     role,
     targets: state.targets.filter(t => !t.archived_at).map((t) => {
