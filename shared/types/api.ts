@@ -2,6 +2,7 @@
 // the target's display unit unless a name says otherwise.
 
 import type { Hazard } from '../utils/caution'
+import type { DesignCaution } from '../utils/designCautions'
 import type { StatsInUnit } from '../utils/cellStats'
 import type { Comparator, Movement, MovementResult, TargetStatus } from '../utils/conformance'
 import type { ForecastView } from '../utils/forecast'
@@ -188,6 +189,8 @@ export interface TargetDetail {
   movers: Mover[]
   /** a derived target's inputs */
   inputs: { key: string, name: string, unit: string, derived: boolean }[]
+  /** cautions with numbers from the target and the latest revision's design parameters */
+  cautions: DesignCaution[]
 }
 
 /** A design parameter as a revision sets it (shared/utils/design.ts). */

@@ -239,6 +239,13 @@ export const TargetDetailOut = z.object({
     'the revisions with a value, real movements first (by |delta|, then p), with their changes and the fixes that landed in them',
   ),
   inputs: described(z.array(z.object({ key: z.string(), name: z.string(), unit: z.string(), derived: z.boolean() })), 'a derived target’s inputs'),
+  cautions: described(z.array(z.object({
+    hazard: z.enum(['electrical', 'thermal', 'mechanical']),
+    value: described(z.number(), 'the number the caution is about, in SI'),
+    unit: described(z.string(), 'its SI unit: J (a projectile’s kinetic energy), m/s (a rim speed), A (a peak current)'),
+    text: described(z.string(), 'the caution with its number and the usual precaution'),
+    basis: described(z.string(), 'what the number was worked out from'),
+  })), 'cautions with numbers from the target and the latest revision’s design parameters (docs/computation.md, Cautions)'),
 })
 
 const CompareSideOut = z.object({ ...statsShape, readings: described(z.int(), 'readings pooled'), status: measuredStatus })
