@@ -16,11 +16,17 @@ export interface CanvasFootage {
    * the 2D context g. It runs in the page as it is, without the compiler's helpers.
    */
   draw: string
+  /**
+   * Milliseconds between pushed frames (default 1000/fps). Slower than real time gives a busy
+   * machine's encoder time for every frame; retime the result with `makeSeekable`'s frameSeconds.
+   */
+  paceMs?: number
 }
 
 /**
- * Records `frames` frames, one pushed to the recorder every 1/fps seconds (each drawn just
- * before, on a schedule that doesn't drift), and returns the WebM bytes as MediaRecorder wrote them.
+ * Records `frames` frames, one pushed to the recorder every 1/fps seconds or `paceMs` (each drawn
+ * just before, on a schedule that doesn't drift), and returns the WebM bytes as MediaRecorder wrote
+ * them.
  */
 export async function recordCanvas(page: Page, f: CanvasFootage): Promise<Buffer> {
   await page.setContent(`<canvas id="c" width="${f.width}" height="${f.height}"></canvas>`)
@@ -35,16 +41,17 @@ export async function recordCanvas(page: Page, f: CanvasFootage): Promise<Buffer
     const stopped = new Promise(r => (rec.onstop = r))
     const draw = ${f.draw}
     const fps = ${f.fps}
+    const pace = ${f.paceMs ?? 1000 / f.fps}
     draw(g, 0, 0)
     rec.start(1000)
     const t0 = performance.now()
     for (let k = 0; k < ${f.frames}; k++) {
-      const due = t0 + k * 1000 / fps
+      const due = t0 + k * pace
       await new Promise(r => setTimeout(r, Math.max(0, due - performance.now())))
       draw(g, k, k / fps)
       track.requestFrame()
     }
-    await new Promise(r => setTimeout(r, 1000 / fps))
+    await new Promise(r => setTimeout(r, pace))
     rec.stop()
     await stopped
     const bytes = new Uint8Array(await new Blob(chunks).arrayBuffer())
@@ -130,9 +137,12 @@ const readUint = (buf: Buffer, el: El) => {
 
 /**
  * The recording rewritten with sizes, a duration and cue points (one per cluster that starts on a
- * keyframe), which makes it seekable over range requests.
+ * keyframe), which makes it seekable over range requests. With `frameSeconds`, every frame is also
+ * retimed to exactly its index × frameSeconds: the recorder stamps frames with the time they were
+ * captured, which wanders by a good part of a frame on a busy machine; footage whose frame k must be
+ * found at time k/fps needs its frames on that grid.
  */
-export function makeSeekable(raw: Buffer): Buffer {
+export function makeSeekable(raw: Buffer, opts: { frameSeconds?: number } = {}): Buffer {
   const top = children(raw, 0, raw.length)
   const header = top[0]!
   const segment = top.find(e => e.id === ID.Segment)!
@@ -140,30 +150,46 @@ export function makeSeekable(raw: Buffer): Buffer {
   const parts = children(raw, segment.dataStart, segment.end, clusterLike)
   const info = parts.find(e => e.id === ID.Info)!
   const others = parts.filter(e => e.id !== ID.Info && e.id !== ID.Cluster && e.id !== ID.Cues)
+  const scaleEl = children(raw, info.dataStart, info.end).find(e => e.id === ID.TimecodeScale)
+  const nsPerTick = scaleEl ? readUint(raw, scaleEl) : 1_000_000
+  const gridTime = (index: number) => Math.round(index * opts.frameSeconds! * 1e9 / nsPerTick)
+
+  const blockOf = (k: El): { block: El, key: boolean } | null => {
+    if (k.id === ID.SimpleBlock) {
+      const track = vint(raw, k.dataStart, false)
+      return { block: k, key: (raw[k.dataStart + track.length + 2]! & 0x80) !== 0 }
+    }
+    if (k.id !== ID.BlockGroup) return null
+    const inner = children(raw, k.dataStart, k.end)
+    const block = inner.find(e => e.id === ID.Block)
+    return block ? { block, key: !inner.some(e => e.id === ID.ReferenceBlock) } : null
+  }
 
   const times: number[] = []
+  let index = 0
   const clusters = parts.filter(e => e.id === ID.Cluster).map((c) => {
     const kids = children(raw, c.dataStart, c.end, new Set([ID.Cluster]))
-    const time = readUint(raw, kids.find(k => k.id === ID.Timecode)!)
+    const time = opts.frameSeconds ? gridTime(index) : readUint(raw, kids.find(k => k.id === ID.Timecode)!)
     let last = time
     let keyStart = false
-    kids.forEach((k, i) => {
-      let block: El | undefined = k.id === ID.SimpleBlock ? k : undefined
-      let key = false
-      if (k.id === ID.BlockGroup) {
-        const inner = children(raw, k.dataStart, k.end)
-        block = inner.find(e => e.id === ID.Block)
-        key = !inner.some(e => e.id === ID.ReferenceBlock)
+    const data = kids.map((k, i) => {
+      if (k.id === ID.Timecode) return opts.frameSeconds ? element(ID.Timecode, uint8(time)) : raw.subarray(k.start, k.end)
+      const found = blockOf(k)
+      if (!found) return raw.subarray(k.start, k.end)
+      const copy = Buffer.from(raw.subarray(k.start, k.end))
+      const at = found.block.dataStart + vint(raw, found.block.dataStart, false).length
+      let rel = raw.readInt16BE(at)
+      if (opts.frameSeconds) {
+        rel = gridTime(index) - time
+        copy.writeInt16BE(rel, at - k.start)
       }
-      if (!block) return
-      const track = vint(raw, block.dataStart, false)
-      const rel = raw.readInt16BE(block.dataStart + track.length)
-      if (k.id === ID.SimpleBlock) key = (raw[block.dataStart + track.length + 2]! & 0x80) !== 0
+      index++
       last = Math.max(last, time + rel)
       times.push(time + rel)
-      if (i <= 1 && key) keyStart = true
+      if (i <= 1 && found.key) keyStart = true
+      return copy
     })
-    return { data: Buffer.concat(kids.map(k => raw.subarray(k.start, k.end))), time, last, keyStart }
+    return { data: Buffer.concat(data), time, last, keyStart }
   })
   // the last frame lasts as long as the average one
   times.sort((a, b) => a - b)
