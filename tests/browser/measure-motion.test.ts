@@ -2,7 +2,7 @@ import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { makeSeekable, recordCanvas } from '../../scripts/lib/canvasFootage'
 import { closeTestDb, mustSucceed, type World } from '../support/api'
-import { goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
+import { axeViolations, goto, launchWithWorld, screenshot, signedInPage, text, watchPage } from '../support/browser'
 import { uploadOk } from '../support/files'
 
 // The measuring screen, driven by the keyboard alone, on footage made here: a dot crossing the frame
@@ -259,6 +259,7 @@ describe('measuring motion on footage, by keyboard, in Chromium', () => {
     expect(files.body.items[0].reading).toMatchObject({ target: 'puck_speed', revision: 'R1' })
 
     expect(await unlabelled(page)).toEqual([])
+    expect(await axeViolations(page, 'main')).toEqual([])
     await expect(page.evaluate(() => document.documentElement.scrollWidth)).resolves.toBeLessThanOrEqual(1440)
     expect([...hosts]).toEqual(['127.0.0.1'])
     // the browser logs the refused save (the signed-off revision), and nothing else
@@ -292,6 +293,7 @@ describe('measuring motion on footage, by keyboard, in Chromium', () => {
     await page.evaluate(() => window.scrollTo(0, 0))
     await screenshot(page, 'measure-motion-390-dark')
     expect(await unlabelled(page)).toEqual([])
+    expect(await axeViolations(page, 'main')).toEqual([])
     expect(problems).toEqual([])
     await context.close()
   }, 120_000)
