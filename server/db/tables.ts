@@ -175,6 +175,14 @@ export interface StatsRow {
   ci_high: number | null
 }
 
+/** The points a track reading was fitted to, as entered, and the footage they were marked on. */
+export interface StoredTrack {
+  timeUnit: string
+  unit: string
+  points: { t: number, x: number, frame?: number }[]
+  file: string | null
+}
+
 export interface ReadingRow extends StatsRow {
   id: string
   target_id: string
@@ -191,6 +199,8 @@ export interface ReadingRow extends StatsRow {
   stated_u_entered: number | null
   /** a stated result's degrees of freedom; null: infinite (or a samples reading) */
   stated_dof: number | null
+  /** a track reading's points and units; null for other kinds */
+  track: StoredTrack | null
   taken_at: Date
   taken_by: string | null
   rig_token_id: string | null

@@ -102,8 +102,19 @@ export interface Scoreboard {
   targets: ScoreTarget[]
 }
 
-/** 'samples': values measured here; 'stated': one result with its own standard uncertainty */
-export type ReadingKind = 'samples' | 'stated'
+/**
+ * 'samples': values measured here; 'stated': one result with its own standard uncertainty;
+ * 'track': positions marked at times, read as the fitted line's slope (a speed)
+ */
+export type ReadingKind = 'samples' | 'stated' | 'track'
+
+/** A track reading's points as entered, and the file they were marked on (its id) */
+export interface ReadingTrack {
+  timeUnit: string
+  unit: string
+  points: { t: number, x: number, frame?: number }[]
+  file: string | null
+}
 
 export interface ReadingStatsView extends StatsInUnit {
   id: string
@@ -141,6 +152,8 @@ export interface ReadingDetail {
   u: number | null
   /** a stated result's degrees of freedom; null: infinite, or a samples reading */
   dof: number | null
+  /** a track reading's points; null for other kinds */
+  track: ReadingTrack | null
   takenAt: string
   by: string | null
   rig: boolean

@@ -17,6 +17,7 @@ export const UploadFields = z.object({
 })
 
 export const FileListQuery = z.object({
+  id: z.uuid({ error: 'Give the file’s id' }).optional().meta({ description: 'only this file (the measuring screen opens one by its id)' }),
   revision: optionalText(40),
   reading: z.uuid({ error: 'Give the reading’s id' }).optional(),
   finding: z.uuid({ error: 'Give the finding’s id' }).optional(),

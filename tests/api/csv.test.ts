@@ -159,14 +159,14 @@ describe('CSV import and export', () => {
       expect(res.headers.get('content-type')).toBe('text/csv; charset=utf-8')
       expect(res.headers.get('content-disposition')).toBe(`attachment; filename="${q.build.slug}-readings.csv"`)
       const parsed = Papa.parse<string[]>(res.body.trim()).data
-      // the first eleven columns as in every earlier version; kind, u, u_si and dof were added for stated results
-      expect(parsed[0]).toEqual(['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method', 'kind', 'u', 'u_si', 'dof'])
+      // the first eleven columns as in every earlier version; kind, u, u_si and dof were added for stated results, track for tracks
+      expect(parsed[0]).toEqual(['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method', 'kind', 'u', 'u_si', 'dof', 'track'])
       expect(parsed).toHaveLength(4)
       const [, a, bRow, c] = parsed
       expect(a!.slice(0, 3)).toEqual([q.build.slug, 'top_speed', 'R1'])
       expect(a!.slice(4, 7)).toEqual(['1', '15.5', 'mph'])
       expect(Number(a![7])).toBeCloseTo(15.5 * 1609.344 / 3600, 12)
-      expect(a!.slice(8)).toEqual(['m/s', '2026-03-14T10:00:00.000Z', 'GPS, "fast" log', 'samples', '', '', ''])
+      expect(a!.slice(8)).toEqual(['m/s', '2026-03-14T10:00:00.000Z', 'GPS, "fast" log', 'samples', '', '', '', ''])
       expect(bRow!.slice(4, 7)).toEqual(['2', '15.6', 'mph'])
       // °F → K: (176 − 32)/1.8 + 273.15 = 353.15 (NIST SP 811 B.8)
       expect(c!.slice(1, 2)).toEqual(['case_temp'])

@@ -446,6 +446,11 @@ describe('evidence files', () => {
       expect(page2.body.items.map((f: any) => f.name)).toEqual(['a.png'])
       expect((await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/files?q=b.cs`)).body.items.map((f: any) => f.name)).toEqual(['b.csv'])
       expect((await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/files?kind=sculpture`)).status).toBe(400)
+      // one file by its id (the measuring screen opens a video so); another build's id lists nothing
+      const one = await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/files?id=${all.body.items[2].id}`)
+      expect(one.body).toMatchObject({ total: 1, items: [{ name: 'b.csv' }] })
+      expect((await w.reviewer.client.get(`/api/v1/builds/${w.build.slug}/files?id=${all.body.items[2].id}`)).body.total).toBe(0)
+      expect((await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/files?id=b.csv`)).status).toBe(400)
       expect((await q.reviewer.client.get(`/api/v1/builds/${q.build.slug}/files?perPage=500`)).status).toBe(400)
       expect((await q.engineer.client.get(`/api/v1/builds/${q.build.slug}/files`)).body.items.every((f: any) => f.canDelete)).toBe(true)
     })

@@ -1,4 +1,5 @@
-import { mkdirSync } from 'node:fs'
+import { mkdirSync, readFileSync } from 'node:fs'
+import { createRequire } from 'node:module'
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
 import { expect } from 'vitest'
 import { makeWorld, type SignedUp, type World } from './api'
@@ -70,3 +71,20 @@ export function watchPage(page: Page): { hosts: Set<string>, problems: string[] 
 
 /** The first match's text, with its white space collapsed. */
 export const text = async (page: Page, selector: string) => ((await page.locator(selector).first().innerText()).replace(/\s+/g, ' ').trim())
+
+let axeSource: string | null = null
+
+/**
+ * The accessibility rules axe-core finds broken in the page (or in the part `include` selects), as
+ * "rule (impact): the elements" lines, so a failing check says what to fix.
+ */
+export async function axeViolations(page: Page, include?: string): Promise<string[]> {
+  axeSource ??= readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8')
+  // evaluated through the debugging protocol, which the page's Content Security Policy doesn't govern
+  await page.evaluate(axeSource)
+  return await page.evaluate(async (include) => {
+    const axe = (window as unknown as { axe: { run: (context: unknown, options: unknown) => Promise<{ violations: { id: string, impact: string, nodes: { target: string[] }[] }[] }> } }).axe
+    const result = await axe.run(include ? { include: [include] } : document, { resultTypes: ['violations'] })
+    return result.violations.map(v => `${v.id} (${v.impact}): ${v.nodes.map(n => n.target.join(' ')).join(', ')}`)
+  }, include)
+}

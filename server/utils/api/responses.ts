@@ -117,7 +117,7 @@ export const RevisionOut = z.object({
   createdAt: z.string(),
 })
 
-const readingKind = described(z.enum(['samples', 'stated']), '`samples`: values measured here; `stated`: one result with its own standard uncertainty u (and ν)')
+const readingKind = described(z.enum(['samples', 'stated', 'track']), '`samples`: values measured here; `stated`: one result with its own standard uncertainty u (and ν); `track`: positions at times, read as the fitted line’s slope (a speed) with its standard error and n − 2 degrees of freedom')
 
 export const ReadingCreatedOut = z.object({
   reading: z.object({ id: z.string(), kind: readingKind, ...statsShape, unit: z.string(), status: measuredStatus }),
@@ -204,7 +204,13 @@ export const ReadingDetailOut = z.object({
   resolution: nullableNumber('in the display unit'),
   uEntered: nullableNumber('a stated result’s standard uncertainty as entered, in unitEntered; null for samples'),
   u: nullableNumber('the same in the display unit'),
-  dof: nullableNumber('a stated result’s degrees of freedom; null: infinite (or a samples reading)'),
+  dof: nullableNumber('a stated result’s degrees of freedom; null: infinite (or a samples reading); a track’s n − 2'),
+  track: described(z.object({
+    timeUnit: z.string(),
+    unit: z.string(),
+    points: z.array(z.object({ t: z.number(), x: z.number(), frame: z.int().optional() })),
+    file: described(z.string().nullable(), 'the id of the file the points were marked on'),
+  }).nullable(), 'a track reading’s points as entered (t in timeUnit, x in unit); null for other kinds'),
   takenAt: z.string(),
   by: described(z.string().nullable(), 'who recorded it (a person’s name, or the rig token’s label)'),
   rig: described(z.boolean(), 'recorded with a rig token'),

@@ -61,6 +61,7 @@ export async function listFiles(db: Db, actor: Actor, input: { buildId: string, 
   const q = input.query
   const filtered = () => {
     const query = listQuery(db, input.buildId)
+    if (q.id) query.where('f.id', q.id)
     if (q.revision) query.whereRaw('lower(rv.label) = lower(?)', [q.revision])
     if (q.reading) query.where('f.reading_id', q.reading)
     if (q.finding) query.where('f.finding_id', q.finding)

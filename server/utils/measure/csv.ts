@@ -13,7 +13,7 @@ import { problemsMessage } from '../../../shared/utils/csvReadings'
 import { formatBytes } from '../../../shared/utils/fileNames'
 import type { CsvImportBody } from '../../../shared/utils/fileSchemas'
 import { diffFromSI, siUnitOf, diffToSI, type Quantity } from '../../../shared/utils/units'
-import type { BuildRow, FileRow } from '../../db/tables'
+import type { BuildRow, FileRow, StoredTrack } from '../../db/tables'
 import { recordAudit, type Actor } from '../audit'
 import type { Db } from '../db'
 import { insertReading } from './readings'
@@ -238,9 +238,11 @@ export async function importCsv(db: Db, actor: Actor, input: { build: Pick<Build
 /**
  * The readings export's columns. The first eleven are those of every earlier version, in the same
  * order; kind, u, u_si and dof were added for stated results (u and dof blank for samples, dof
- * blank when infinite). Importing the file with the u and dof columns gives the readings back.
+ * blank when infinite), then track for track readings (their points as JSON, {timeUnit, unit,
+ * points: [{t, x, frame?}], file}; blank for other kinds). Importing the file with the u and dof
+ * columns gives the readings back (a track as the stated result it gave).
  */
-export const READINGS_CSV_COLUMNS = ['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method', 'kind', 'u', 'u_si', 'dof']
+export const READINGS_CSV_COLUMNS = ['build', 'target', 'revision', 'reading', 'sample', 'value', 'unit', 'value_si', 'si_unit', 'taken_at', 'method', 'kind', 'u', 'u_si', 'dof', 'track']
 
 const unparse = (rows: unknown[][]) => Papa.unparse(rows, { escapeFormulae: true, newline: '\r\n' })
 
@@ -257,7 +259,7 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
       const found = await db('readings as rd').join('targets as t', 't.id', 'rd.target_id').join('revisions as rv', 'rv.id', 'rd.revision_id')
         .whereIn('rd.id', batch)
         .select('rd.id', 't.key', 't.quantity', 'rv.label', 'rd.values_entered', 'rd.values_si', 'rd.unit_entered', 'rd.taken_at', 'rd.method',
-          'rd.stated_u_entered', 'rd.stated_u_si', 'rd.stated_dof') as {
+          'rd.stated_u_entered', 'rd.stated_u_si', 'rd.stated_dof', 'rd.track') as {
         id: string
         key: string
         quantity: Quantity
@@ -270,6 +272,7 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
         stated_u_entered: number | null
         stated_u_si: number | null
         stated_dof: number | null
+        track: StoredTrack | null
       }[]
       const byId = new Map(found.map(r => [r.id, r]))
       const lines: unknown[][] = []
@@ -277,7 +280,9 @@ export function readingsCsv(db: Db, build: { id: string, slug: string }): Readab
         const r = byId.get(id)
         if (!r) continue
         const at = new Date(r.taken_at).toISOString()
-        const stated = r.stated_u_si === null ? ['samples', null, null, null] : ['stated', r.stated_u_entered, r.stated_u_si, r.stated_dof]
+        const stated = r.stated_u_si === null
+          ? ['samples', null, null, null, null]
+          : [r.track ? 'track' : 'stated', r.stated_u_entered, r.stated_u_si, r.stated_dof, r.track ? JSON.stringify(r.track) : null]
         r.values_entered.forEach((v, k) => lines.push([build.slug, r.key, r.label, r.id, k + 1, v, r.unit_entered, r.values_si[k], siUnitOf(r.quantity), at, r.method, ...stated]))
       }
       if (lines.length) yield `${unparse(lines)}\r\n`

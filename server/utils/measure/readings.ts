@@ -3,10 +3,11 @@ import type { Knex } from 'knex'
 import type { z } from 'zod'
 import type { ReadingCreated, ReadingDetail } from '../../../shared/types/api'
 import { cellFromStats, cellInUnit, cellStatus } from '../../../shared/utils/cellStats'
-import { isStatedBody, type ReadingBody } from '../../../shared/utils/readingSchemas'
+import { isStatedBody, isTrackBody, type ReadingBody, type TrackReadingInput } from '../../../shared/utils/readingSchemas'
 import { MAX_SAMPLES, StatsOverflowError, computeStats, statedStats } from '../../../shared/utils/readingStats'
-import { assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, toSI } from '../../../shared/utils/units'
-import type { ReadingRow, TargetRow } from '../../db/tables'
+import { TrackError, fitTrack } from '../../../shared/utils/track'
+import { assertSameQuantity, diffFromSI, diffToSI, fromSI, parseUnit, quantityLabel, toSI, type UnitInfo } from '../../../shared/utils/units'
+import type { ReadingRow, StoredTrack, TargetRow } from '../../db/tables'
 import type { Actor } from '../audit'
 import type { Db } from '../db'
 import { assertOpen, findRevision } from './revisions'
@@ -14,7 +15,7 @@ import { cellOfRow, refreshCell, statsColumns } from './statsCache'
 import { trackTargetEvents } from './targetEvents'
 import { cellTargetOf, findTarget, unitProblem } from './targets'
 
-// Readings: the samples (or one stated result, value ± u) of one target on one revision. Plain Knex with the connection passed
+// Readings: the samples (or one stated result, value ± u, or a track's fitted speed) of one target on one revision. Plain Knex with the connection passed
 // in (the seed uses it too). Each write re-pools the cell and re-decides the target in the same
 // transaction, holding the target's row lock, so the cached statistics never disagree.
 
@@ -39,7 +40,49 @@ function tooLarge(field = 'values'): never {
  * MAX_SAMPLES values, 422 for a unit of another quantity or statistics that overflow.
  */
 export async function insertReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
-  return await statsOr422(() => recordReading(trx, actor, input), isStatedBody(input.body) ? 'value' : 'values')
+  return await statsOr422(() => recordReading(trx, actor, input), isTrackBody(input.body) ? 'track' : isStatedBody(input.body) ? 'value' : 'values')
+}
+
+function unitOf(text: string, field: string, quantity: 'length' | 'time', examples: string): UnitInfo {
+  let unit
+  try {
+    unit = parseUnit(text)
+  }
+  catch (e) {
+    throw unitProblem(e, field)
+  }
+  if (unit.quantity !== quantity) {
+    const message = `"${text.trim()}" is a unit of ${quantityLabel(unit.quantity)}; ${field === 'track.unit' ? 'positions' : 'times'} are in a unit of ${quantity} (${examples})`
+    throw createError({ statusCode: 422, message: `${field}: ${message}`, data: { fields: { [field]: message } } })
+  }
+  return unit
+}
+
+/**
+ * A track as one result: the least-squares slope of x on t in the unit "length unit/time unit",
+ * its standard error and n − 2 degrees of freedom (docs/computation.md §Track readings). 422 for
+ * units that aren't a length and a time, or points all at one time.
+ */
+function trackResult(body: TrackReadingInput) {
+  const length = unitOf(body.track.unit, 'track.unit', 'length', 'm, mm, in …')
+  const time = unitOf(body.track.timeUnit, 'track.timeUnit', 'time', 's, ms, min …')
+  const wrap = (u: string) => (/[/·^]/.test(u) ? `(${u})` : u)
+  const speed = parseUnit(`${wrap(length.unit)}/${wrap(time.unit)}`)
+  let fit
+  try {
+    fit = fitTrack(body.track.points)
+  }
+  catch (e) {
+    if (!(e instanceof TrackError)) throw e
+    throw createError({ statusCode: 422, message: `track.points: ${e.message}`, data: { fields: { 'track.points': e.message } } })
+  }
+  const stored: StoredTrack = {
+    timeUnit: time.unit,
+    unit: length.unit,
+    points: body.track.points.map(p => (p.frame === undefined ? { t: p.t, x: p.x } : { t: p.t, x: p.x, frame: p.frame })),
+    file: body.file ?? null,
+  }
+  return { unit: speed.unit, value: fit.slope, u: fit.u, dof: fit.nu, stored }
 }
 
 async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' | 'rigTokenId'>, input: { buildId: string, body: z.output<typeof ReadingBody> }): Promise<ReadingCreated> {
@@ -55,17 +98,19 @@ async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' 
   }
   if (target.archived_at) throw createError({ statusCode: 409, message: `Target "${target.key}" is archived; restore it to add readings` })
   assertOpen(revision, 'add readings')
+  const track = isTrackBody(body) ? trackResult(body) : null
   let units
   try {
-    units = assertSameQuantity(body.unit, target.unit)
+    units = assertSameQuantity(isTrackBody(body) ? track!.unit : body.unit, target.unit)
   }
   catch (e) {
-    throw unitProblem(e)
+    throw unitProblem(e, track ? 'target' : 'unit')
   }
   // the readings of a cell are pooled into one sample set, which holds at most MAX_SAMPLES values
   const held = (await trx('readings').where({ target_id: target.id, revision_id: revision.id }).sum({ n: 'n' }).first())?.n ?? 0
-  const stated = isStatedBody(body) ? body : null
-  const samples = isStatedBody(body) ? null : body
+  // a track is stored as the stated result it gives
+  const stated = track ?? (isStatedBody(body) ? { value: body.value, u: body.u, dof: body.dof ?? null } : null)
+  const samples = isTrackBody(body) || isStatedBody(body) ? null : body
   const entered = stated ? [stated.value] : samples!.values
   if (Number(held) + entered.length > MAX_SAMPLES) {
     throw createError({
@@ -74,15 +119,17 @@ async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' 
       data: { fields: { values: 'Too many values for this revision' } },
     })
   }
+  const valueField = track ? 'track' : stated ? 'value' : 'values'
   const valuesSI = entered.map(v => toSI(v, units.entered))
   const resolution = samples?.resolution ?? null
   const resolutionSI = resolution ? diffToSI(resolution, units.entered) : null
-  if (!valuesSI.every(Number.isFinite) || (resolutionSI !== null && !Number.isFinite(resolutionSI))) tooLarge(stated ? 'value' : 'values')
+  if (!valuesSI.every(Number.isFinite) || (resolutionSI !== null && !Number.isFinite(resolutionSI))) tooLarge(valueField)
   // a stated u is a difference: it converts with the unit's factor only (no offset)
   const uSI = stated ? diffToSI(stated.u, units.entered) : null
-  if (uSI !== null && !Number.isFinite(uSI)) tooLarge('u')
-  const stats = stated ? statedStats(valuesSI[0]!, uSI!, stated.dof ?? null) : computeStats(valuesSI, resolutionSI)
-  if (![stats.mean, stats.sd ?? 0, stats.u ?? 0, ...(stats.ci95 ?? [])].every(Number.isFinite)) tooLarge(stated ? 'u' : 'values')
+  if (uSI !== null && !Number.isFinite(uSI)) tooLarge(track ? 'track' : 'u')
+  const stats = stated ? statedStats(valuesSI[0]!, uSI!, stated.dof) : computeStats(valuesSI, resolutionSI)
+  if (![stats.mean, stats.sd ?? 0, stats.u ?? 0, ...(stats.ci95 ?? [])].every(Number.isFinite)) tooLarge(track ? 'track' : stated ? 'u' : 'values')
+  const file = track?.stored.file ? await evidenceFile(trx, buildId, track.stored.file) : null
 
   const [row] = await trx('readings').insert({
     target_id: target.id,
@@ -95,24 +142,34 @@ async function recordReading(trx: Knex.Transaction, actor: Pick<Actor, 'userId' 
     resolution_entered: resolution,
     stated_u_si: uSI,
     stated_u_entered: stated ? stated.u : null,
-    stated_dof: stated ? (stated.dof ?? null) : null,
+    stated_dof: stated ? stated.dof : null,
+    track: track ? track.stored : null,
     ...statsColumns(cellFromStats(stats)),
     taken_at: body.takenAt ?? trx.fn.now(),
     taken_by: actor.userId,
     rig_token_id: actor.rigTokenId,
     notes: body.notes ?? '',
   }).returning('id')
+  // the footage becomes the reading's evidence, unless it already is another reading's
+  if (file && file.reading_id === null) await trx('files').where({ id: file.id }).update({ reading_id: row!.id, revision_id: file.revision_id ?? revision.id })
 
   const rule = cellTargetOf(target)
   const cell = await trackTargetEvents(trx, target, () => refreshCell(trx, rule, revision.id))
   const display = units.target
   const own = cellFromStats(stats)
   return {
-    reading: { id: row!.id, kind: stated ? 'stated' : 'samples', unit: display.unit, ...cellInUnit(own, display), status: cellStatus(own, rule) },
+    reading: { id: row!.id, kind: track ? 'track' : stated ? 'stated' : 'samples', unit: display.unit, ...cellInUnit(own, display), status: cellStatus(own, rule) },
     pooled: cell && cell.readings > 1
       ? { ...cellInUnit(cellOfRow(cell), display), readings: cell.readings, status: cell.status }
       : null,
   }
+}
+
+/** The build's file a track was marked on; 422 when the build has none with that id. */
+async function evidenceFile(trx: Knex.Transaction, buildId: string, id: string) {
+  const file = await trx('files').where({ id, build_id: buildId }).forUpdate().first('id', 'reading_id', 'revision_id')
+  if (!file) throw createError({ statusCode: 422, message: 'file: This build has no file with that id', data: { fields: { file: 'No such file in this build' } } })
+  return file
 }
 
 /** Deletes a reading of the build; 404 when there is none, 409 when its revision is frozen. */
@@ -142,7 +199,7 @@ export function readingDetail(r: ReadingRow & { revision_label: string, by_user:
   const rule = cellTargetOf(target)
   return {
     id: r.id,
-    kind: r.stated_u_si === null ? 'samples' : 'stated',
+    kind: r.track ? 'track' : r.stated_u_si === null ? 'samples' : 'stated',
     revision: r.revision_label,
     n: r.n,
     stats: cellInUnit(cell, unit),
@@ -156,6 +213,7 @@ export function readingDetail(r: ReadingRow & { revision_label: string, by_user:
     uEntered: r.stated_u_entered,
     u: r.stated_u_si === null ? null : diffFromSI(r.stated_u_si, unit),
     dof: r.stated_dof,
+    track: r.track,
     takenAt: new Date(r.taken_at).toISOString(),
     by: r.by_user ?? (r.by_rig ? `rig token ${r.by_rig}` : null),
     rig: r.rig_token_id !== null,

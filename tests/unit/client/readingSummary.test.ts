@@ -29,4 +29,13 @@ describe('readingSummary', () => {
     }
     expect(readingSummary(r)).toBe('Stated result, 42.50 ± 0.98 N·m — Met')
   })
+
+  it('names a track by its fitted speed rather than n = 1', () => {
+    // 0.0751 ± t(0.975, 7)·0.0004 = ± 2.365·0.0004 (e-Handbook 1.3.6.7.2) = ± 0.000946 → two digits 0.00095
+    const r: ReadingCreated = {
+      reading: { id: 'r4', kind: 'track', unit: 'm/s', status: 'met', n: 1, mean: 0.0751, ci95: [0.0751 - 0.000946, 0.0751 + 0.000946], sd: null, uA: null, uB: null, u: 0.0004, nuEff: 7 },
+      pooled: null,
+    }
+    expect(readingSummary(r)).toBe('Track (fitted speed), 0.07510 ± 0.00095 m/s — Met')
+  })
 })
