@@ -2,6 +2,7 @@ import { createHash, randomBytes, randomUUID } from 'node:crypto'
 import { gunzipSync, gzipSync } from 'node:zlib'
 import { extract as tarExtract, pack as tarPack } from 'tar-stream'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { ArchiveImportedOut } from '../../server/utils/api/responses'
 import { closeTestDb, makeWorld, mustSucceed, testDb, type World } from '../support/api'
 import { BASE_URL } from '../support/env'
 import { PNG_1x1, byteSource, storedFiles, streamDownload, uploadOk } from '../support/files'
@@ -174,6 +175,7 @@ describe('build archives', () => {
   it('imports as a new build of another team that reads exactly as the original: scoreboard, board, readings, files', async () => {
     const res = await importInto(otherTeam.slug, archive)
     expect(res.status, JSON.stringify(res.body)).toBe(201)
+    expect(ArchiveImportedOut.safeParse(res.body).success).toBe(true)
     const copy = res.body.build as { id: string, slug: string }
     expect(copy.id).not.toBe(source.id)
     const db = testDb()

@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import {
   ApiError, BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
-  FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixLandedOut, FixOut, ForecastOut, HistoryEntryOut,
+  ArchiveImportedOut, FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixLandedOut, FixOut, ForecastOut, HistoryEntryOut,
   MoveResultOut, OpenFindingsOut, ReadingCreatedOut, ReadingDetailOut, RevisionDetailOut, RevisionOut, ScoreboardOut,
   SignedInOut, SubscriptionOut, TargetDetailOut, TargetOrderOut, TargetOut, TeamCreatedOut, TeamOut,
 } from './responses'
@@ -54,6 +54,7 @@ const ANSWERS: Record<string, z.ZodType> = {
   FileList: FileListOut,
   CsvPreview: CsvPreviewOut,
   CsvImported: CsvImportedOut,
+  ArchiveImported: ArchiveImportedOut,
 }
 
 const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` })
