@@ -199,7 +199,7 @@ export async function exportBuildArchive(db: Knex, actor: Actor, input: { build:
     }
     tar.finalize()
   }
-  pipeline(tar as unknown as Readable, createGzip({ level: 6 }), out).catch(err => out.destroy(err))
+  pipeline(tar as unknown as Readable, createGzip({ level: 1 }), out).catch(err => out.destroy(err))
   write().catch((err) => {
     if (!closed) console.error(`archive: exporting ${build.slug} failed:`, err)
     out.destroy(err as Error)
