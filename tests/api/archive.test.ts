@@ -319,6 +319,23 @@ describe('build archives', () => {
       const odd = entries.map(e => (e.name === 'tables/findings.json' ? { name: e.name, data: Buffer.from(JSON.stringify(findings)) } : e))
       await refusedWith(await repack(odd), 422, /tables\/findings\.json: a row breaks a rule/)
     }, 60_000)
+
+    it('a formula or a unit that can’t be read, a reading in a unit of another quantity', async () => {
+      const edit = (name: string, change: (rows: any[]) => void) => entries.map((e) => {
+        if (e.name !== name) return e
+        const rows = JSON.parse(e.data.toString())
+        change(rows)
+        return { name: e.name, data: Buffer.from(JSON.stringify(rows)) }
+      })
+      await refusedWith(await repack(edit('tables/targets.json', (rows) => { rows.find((t: any) => t.formula).formula = '0.5 * payload_mass * no_such_key' })), 422, /target "kinetic_energy": formula: .*no_such_key/)
+      await refusedWith(await repack(edit('tables/targets.json', (rows) => { rows.find((t: any) => t.key === 'exit_speed').unit = 'furlongs per fortnightly blob' })), 422, /target "exit_speed"/)
+      await refusedWith(await repack(edit('tables/readings.json', (rows) => { rows.find((r: any) => r.unit_entered === 'g').unit_entered = 'V' })), 422, /a reading of "payload_mass" in "V"/)
+    }, 60_000)
+
+    it('an entry missing, or of another size than its manifest says', async () => {
+      await refusedWith(await repack(entries.filter(e => e.name !== 'tables/fixes.json'), { keepManifest: true }), 422, /lacks "tables\/fixes\.json"/)
+      await refusedWith(await repack(entries, { manifest: (m) => { m.files.find((f: any) => f.name === 'readings.csv').size += 1 } }), 422, /"readings\.csv" is \d+ bytes in the archive, but its manifest says/)
+    }, 60_000)
   })
 
   it('lets Owners and Engineers export and import; a Reviewer gets 403, an outsider 404, a rig token 403', async () => {

@@ -11,12 +11,14 @@ import { ArchiveImportFields } from '../../../shared/utils/buildSchemas'
 import { poolCell } from '../../../shared/utils/cellStats'
 import { formatBytes } from '../../../shared/utils/fileNames'
 import { MAX_SAMPLES, StatsOverflowError } from '../../../shared/utils/readingStats'
+import { assertSameQuantity, parseUnit } from '../../../shared/utils/units'
 import type { TeamRow } from '../../db/tables'
 import { insertWithSlug } from '../access/accounts'
 import { recordAudit, type Actor } from '../audit'
 import { readMultipart } from '../files/multipart'
 import { filesConfig, newStorageKey, useFileStore, type FileStore } from '../files/storage'
 import { teamUsage } from '../files/uploads'
+import { checkTargetFormula } from '../measure/formulas'
 import { cellRowOf, redecideTarget, type CellTarget } from '../measure/statsCache'
 import { parseOr400 } from '../validate'
 import {
@@ -385,6 +387,30 @@ async function insertRows(trx: Knex.Transaction, actor: Actor, input: { team: Pi
     const fileRows = new Set(archive.tables.get('files')!.map(r => r.id as string))
     const stray = [...archive.files.keys()].find(id => !fileRows.has(id))
     if (stray) throw refused(`files/${stray} has no row in tables/files.json`)
+
+    // what the database can't check: units that can be read, formulas over the build's keys
+    // (no circle, the target's quantity), readings in a unit of their target's quantity
+    current = 'targets'
+    for (const t of await trx('targets').where({ build_id: build.id }).orderBy('position')) {
+      try {
+        parseUnit(t.unit)
+        if (t.formula !== null) await checkTargetFormula(trx, build.id, { key: t.key, unit: t.unit }, t.formula)
+      }
+      catch (e) {
+        throw refused(`tables/targets.json: target "${t.key}": ${(e as Error).message}`)
+      }
+    }
+    current = 'readings'
+    const units = await trx('readings as r').join('targets as t', 't.id', 'r.target_id').where('t.build_id', build.id)
+      .distinct('r.unit_entered', 't.unit', 't.key') as { unit_entered: string, unit: string, key: string }[]
+    for (const u of units) {
+      try {
+        assertSameQuantity(u.unit_entered, u.unit)
+      }
+      catch (e) {
+        throw refused(`tables/readings.json: a reading of "${u.key}" in "${u.unit_entered}": ${(e as Error).message}`)
+      }
+    }
 
     // the statistics cache, pooled from the readings just written (never taken on trust)
     current = 'cell_stats'
