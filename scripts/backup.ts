@@ -1,8 +1,9 @@
 // npm run backup -- DIR: a consistent snapshot of the database and the file store while the app
 // keeps serving. One read-only transaction exports its snapshot; pg_dump dumps exactly that
 // snapshot, and the files table is read in it too, so the folder holds the bytes of exactly the
-// files the dump knows (each checked against its recorded sha256). A file deleted while the copy
-// runs fails the backup (run it again). The manifest is written last. Layout: scripts/backupFormat.ts.
+// files the dump knows (each checked against its recorded sha256). A file whose bytes are gone
+// (deleted while the copy ran, or lost before) is named in the manifest's files.missing and the
+// output. The manifest is written last. Layout: scripts/backupFormat.ts.
 import { spawn } from 'node:child_process'
 import { mkdir, readdir, writeFile } from 'node:fs/promises'
 import { join, resolve } from 'node:path'
@@ -76,8 +77,10 @@ try {
     list.push({ key: r.storage_key, size: copied.size, sha256: copied.sha256 })
     bytes += copied.size
   }
+  // bytes the database lists but the store lacks (lost before, or the file deleted while the copy
+  // ran) can't be copied: the backup goes on, and names them in its manifest and its output
   if (missing.length > 0) {
-    fail(`${missing.length} file(s) the database lists were not in the store (deleted while the backup ran?): ${missing.slice(0, 5).join(', ')}${missing.length > 5 ? ' …' : ''}. Run the backup again into a new folder.`, 3)
+    console.error(`backup: warning: ${missing.length} file(s) the database lists have no bytes in the store; listed under files.missing in the manifest: ${missing.slice(0, 5).join(', ')}${missing.length > 5 ? ' …' : ''}`)
   }
 
   const dump = await sha256Of(join(dir, 'database.dump'))
@@ -87,7 +90,7 @@ try {
     createdAt: new Date().toISOString(),
     migration,
     database: { file: 'database.dump', bytes: dump.size, sha256: dump.sha256 },
-    files: { count: list.length, bytes, list },
+    files: { count: list.length, bytes, list, missing },
   }
   await writeFile(join(dir, 'manifest.json'), `${JSON.stringify(manifest, null, 1)}\n`, { flag: 'wx' })
   const s = ((performance.now() - started) / 1000).toFixed(1)

@@ -19,7 +19,8 @@ export interface BackupManifest {
   /** the newest migration the database had */
   migration: string | null
   database: { file: string, bytes: number, sha256: string }
-  files: { count: number, bytes: number, list: { key: string, size: number, sha256: string }[] }
+  /** missing: storage keys the database lists whose bytes were not in the store */
+  files: { count: number, bytes: number, list: { key: string, size: number, sha256: string }[], missing: string[] }
 }
 
 /** Storage keys as the app makes them ("ab/<uuid>"): nothing else is read or written. */

@@ -76,6 +76,8 @@ try {
     bytes += copied.size
   }
   const s = ((performance.now() - started) / 1000).toFixed(1)
+  const missing = manifest.files.missing ?? []
+  if (missing.length > 0) console.error(`restore: note: ${missing.length} file(s) had no bytes when the backup was taken (files.missing in the manifest); their downloads stay unavailable`)
   console.log(`restore: database from ${manifest.createdAt} (migration ${manifest.migration ?? 'none'}), ${manifest.files.count} files ${(bytes / 1e6).toFixed(2)} MB, in ${s} s`)
 }
 finally {

@@ -21,6 +21,7 @@ const teams = [
     builds: [
       { slug: 'trailhopper', name: 'Trailhopper', summary: 'Hub drive unit of an electric cargo trike.' },
       { slug: 'perch', name: 'Perch', summary: 'Pan-tilt head for a wildlife camera.' },
+      { slug: 'arcwheel', name: 'Arcwheel', summary: 'Flywheel ball launcher for a sports-training rig.' },
     ],
   },
   {

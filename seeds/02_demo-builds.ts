@@ -3,10 +3,10 @@ import type { Knex } from 'knex'
 import type { Comparator } from '../shared/utils/conformance'
 import { insertReading } from '../server/utils/measure/readings'
 import { findRevision, freezeRevision, insertRevision } from '../server/utils/measure/revisions'
-import { insertTarget } from '../server/utils/measure/targets'
+import { findTarget, insertTarget, updateTarget } from '../server/utils/measure/targets'
 
 // Demo data only: invented targets, revisions and readings for the demo builds of
-// 01_demo-accounts (Northwind Mobility Lab: Trailhopper, Perch; Quarry Works: Gravel Sifter).
+// 01_demo-accounts (Northwind Mobility Lab: Trailhopper, Perch, Arcwheel; Quarry Works: Gravel Sifter).
 // Written through the same service functions as the API, so the cached statistics are the
 // ones the server would compute. Idempotent: what exists is left as it is.
 //
@@ -15,6 +15,11 @@ import { insertTarget } from '../server/utils/measure/targets'
 // cut-off moved the top speed into its band; R3's planetary stage moved the torque. The wheel
 // power is derived (wheel torque × wheel speed, P = τω) and carries the propagated uncertainty.
 // A target added here after a database was seeded gets its readings on the existing revisions.
+//
+// Arcwheel (a flywheel ball launcher) carries design parameters and a model: the exit speed is
+// predicted as the wheel's rim speed, v = ωr (motor_speed * wheel_radius). The balls leave at
+// about 0.8 of it on every revision (slip and the ball's squash), so the calibration factor is
+// about 0.80 and solving the wheel radius for 20 m/s at R3's 3600 rpm gives about 66 mm.
 
 interface DemoTarget {
   key: string
@@ -27,6 +32,8 @@ interface DemoTarget {
   noiseBand?: number
   notes?: string
   formula?: string
+  /** a design model over the parameter keys, set once the revisions define them */
+  model?: string
 }
 
 interface DemoReading {
@@ -43,7 +50,7 @@ interface DemoRevision {
   builtOn: string
   summary: string
   changes: string[]
-  parameters: { name: string, value: number | string, unit?: string }[]
+  parameters: { key?: string, name: string, value: number | string, unit?: string, tolerance?: number }[]
   readings: DemoReading[]
   signedOff?: boolean
 }
@@ -200,6 +207,62 @@ const perch: DemoBuild = {
   ],
 }
 
+const arcwheel: DemoBuild = {
+  slug: 'arcwheel',
+  targets: [
+    { key: 'exit_speed', name: 'Ball exit speed', unit: 'm/s', comparator: 'atLeast', threshold: 20, stretch: 22, noiseBand: 0.3, model: 'motor_speed * wheel_radius', notes: 'Doppler speed sensor 1 m past the wheels, one reading per ball; the rig fires into a catch net.' },
+    { key: 'wheel_speed', name: 'Wheel speed while feeding', unit: 'rpm', comparator: 'atLeast', threshold: 3400, noiseBand: 20, notes: 'Optical tachometer on the lower wheel, a ball every 3 s.' },
+    { key: 'peak_current', name: 'Peak pack current at spin-up', unit: 'A', comparator: 'atMost', threshold: 35, noiseBand: 0.5, notes: 'Both motors spinning up from rest; clamp meter on the pack lead (peak hold).' },
+  ],
+  revisions: [
+    {
+      label: 'R1',
+      builtOn: '2026-03-23',
+      summary: 'Two printed wheels on hobby motors.',
+      changes: ['Two 100 mm printed wheels, counter-rotating', 'Motors at 3000 rpm set-point', 'Gravity ball feed'],
+      parameters: [
+        { key: 'motor_speed', name: 'Motor speed set-point', value: 3000, unit: 'rpm' },
+        { key: 'wheel_radius', name: 'Wheel radius', value: 50, unit: 'mm', tolerance: 0.2 },
+        { key: 'ball_mass', name: 'Ball mass', value: 58, unit: 'g', tolerance: 1 },
+        { key: 'pack_fuse', name: 'Pack fuse rating', value: 40, unit: 'A' },
+        { key: 'wheel_material', name: 'Wheel material', value: 'PETG, TPU tread' },
+      ],
+      readings: [
+        { target: 'exit_speed', values: [12.4, 12.8, 12.5, 12.7, 12.3, 12.9, 12.6, 12.5, 12.7], unit: 'm/s', method: 'Doppler speed sensor, one ball per sample', resolution: 0.1 },
+        { target: 'wheel_speed', values: [2950, 2940, 2965, 2935, 2955], unit: 'rpm', method: 'Optical tachometer', resolution: 5 },
+        { target: 'peak_current', values: [27.8, 28.3, 27.5, 28.1], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1, by: 'engineer2' },
+      ],
+    },
+    {
+      label: 'R2',
+      builtOn: '2026-04-13',
+      summary: 'Stronger motors at 3600 rpm.',
+      changes: ['Motors with a higher Kv, set-point 3600 rpm', 'Aluminium motor mounts'],
+      parameters: [{ key: 'motor_speed', name: 'Motor speed set-point', value: 3600, unit: 'rpm' }],
+      readings: [
+        { target: 'exit_speed', values: [15.1, 14.8, 15.3, 15.0, 14.9, 15.2, 15.0, 14.7, 15.3, 15.2], unit: 'm/s', method: 'Doppler speed sensor, one ball per sample', resolution: 0.1 },
+        { target: 'wheel_speed', values: [3560, 3545, 3570, 3550, 3555], unit: 'rpm', method: 'Optical tachometer', resolution: 5 },
+        { target: 'peak_current', values: [36.2, 35.8, 36.5, 36.0], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1, by: 'engineer2' },
+      ],
+    },
+    {
+      label: 'R3',
+      builtOn: '2026-05-04',
+      summary: 'Larger wheels and a soft start.',
+      changes: ['120 mm machined wheels with a rubber tread', 'Soft start ramps the motors over 1.5 s'],
+      parameters: [
+        { key: 'wheel_radius', name: 'Wheel radius', value: 60, unit: 'mm', tolerance: 0.2 },
+        { key: 'wheel_material', name: 'Wheel material', value: '6061 aluminium, rubber tread' },
+      ],
+      readings: [
+        { target: 'exit_speed', values: [18.0, 18.3, 17.9, 18.2, 18.1, 17.8, 18.4, 18.1], unit: 'm/s', method: 'Doppler speed sensor, one ball per sample', resolution: 0.1 },
+        { target: 'wheel_speed', values: [3540, 3530, 3555, 3535, 3545], unit: 'rpm', method: 'Optical tachometer', resolution: 5 },
+        { target: 'peak_current', values: [33.1, 32.7, 33.4, 32.9], unit: 'A', method: 'Clamp meter, peak hold', resolution: 0.1, by: 'engineer2' },
+      ],
+    },
+  ],
+}
+
 const gravelSifter: DemoBuild = {
   slug: 'gravel-sifter',
   targets: [
@@ -245,7 +308,7 @@ async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<
   const added = new Set<string>()
   for (const t of demo.targets) {
     if (!(await trx('targets').where({ build_id: build.id, key: t.key }).first('id'))) {
-      await insertTarget(trx, { userId: owner }, { buildId: build.id, body: { ...t, notes: t.notes ?? '', formula: t.formula ?? null } })
+      await insertTarget(trx, { userId: owner }, { buildId: build.id, body: { ...t, notes: t.notes ?? '', formula: t.formula ?? null, model: null } })
       added.add(t.key)
     }
   }
@@ -282,6 +345,11 @@ async function seedBuild(trx: Knex.Transaction, demo: DemoBuild, people: Record<
     await record(r, r.readings)
     if (r.signedOff) await freezeRevision(trx, await findRevision(trx, build.id, r.label), people.reviewer ?? null)
   }
+  // a model names parameter keys, which must exist first: set on the targets added in this run
+  for (const t of demo.targets) {
+    if (!t.model || !added.has(t.key)) continue
+    await updateTarget(trx, { target: await findTarget(trx, build.id, t.key), patch: { model: t.model } })
+  }
 }
 
 export async function seed(knex: Knex): Promise<void> {
@@ -292,6 +360,6 @@ export async function seed(knex: Knex): Promise<void> {
       engineer2: await userId(trx, 'engineer2@demo.test'),
       reviewer: await userId(trx, 'reviewer@demo.test'),
     }
-    for (const demo of [trailhopper, perch, gravelSifter]) await seedBuild(trx, demo, people)
+    for (const demo of [trailhopper, perch, arcwheel, gravelSifter]) await seedBuild(trx, demo, people)
   })
 }

@@ -10,7 +10,8 @@ export async function seed(knex: Knex): Promise<void> {
   const builds = await knex('builds').whereIn('slug', ['trailhopper', 'perch']).select('id', 'slug')
   if (!reviewer || builds.length === 0) return
   await knex.transaction(async (trx) => {
-    await trx('events').whereIn('build_id', builds.map(b => b.id)).whereNull('fanned_out_at').update({ fanned_out_at: trx.fn.now() })
+    const seeded = await trx('builds').whereIn('slug', ['trailhopper', 'perch', 'arcwheel']).pluck('id') as string[]
+    await trx('events').whereIn('build_id', seeded).whereNull('fanned_out_at').update({ fanned_out_at: trx.fn.now() })
     // so are the mentions in the demo's comments
     await trx('mention_notices').whereNull('sent_at').update({ sent_at: trx.fn.now() })
     for (const b of builds) {

@@ -134,6 +134,8 @@ export interface TargetRow {
   archived_at: Date | null
   /** a derived target's formula over other targets' keys; null for a measured target */
   formula: string | null
+  /** a design model over the revisions' parameter keys; null without one */
+  model: string | null
   created_by: string | null
   created_at: Date
   updated_at: Date
@@ -148,7 +150,8 @@ export interface RevisionRow {
   built_on: string | null
   summary: string
   changes: string[]
-  parameters: { name: string, value: number | string, unit: string | null }[]
+  /** design parameters as entered (shared/utils/design.ts DesignParameter) */
+  parameters: { key: string, name: string, value: number | string, unit: string | null, tolerance: number | null }[]
   frozen_at: Date | null
   frozen_by: string | null
   created_by: string | null

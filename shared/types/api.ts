@@ -2,6 +2,7 @@
 // the target's display unit unless a name says otherwise.
 
 import type { Hazard } from '../utils/caution'
+import type { DesignCaution } from '../utils/designCautions'
 import type { StatsInUnit } from '../utils/cellStats'
 import type { Comparator, Movement, MovementResult, TargetStatus } from '../utils/conformance'
 import type { ForecastView } from '../utils/forecast'
@@ -29,6 +30,8 @@ export interface TargetView {
   /** evaluated from other targets' readings by `formula`; takes no readings of its own */
   derived: boolean
   formula: string | null
+  /** a design model over the revisions' parameter keys predicting this target; null without one */
+  model: string | null
 }
 
 /** One input's part in a derived value on one revision (GUM eq. 10 term by term). */
@@ -186,11 +189,23 @@ export interface TargetDetail {
   movers: Mover[]
   /** a derived target's inputs */
   inputs: { key: string, name: string, unit: string, derived: boolean }[]
+  /** cautions with numbers from the target and the latest revision's design parameters */
+  cautions: DesignCaution[]
+}
+
+/** A design parameter as a revision sets it (shared/utils/design.ts). */
+export interface ParameterView {
+  key: string
+  name: string
+  value: number | string
+  unit: string | null
+  tolerance: number | null
 }
 
 export interface RevisionView extends RevisionBrief {
   changes: string[]
-  parameters: { name: string, value: number | string, unit: string | null }[]
+  /** the parameters this revision sets itself */
+  parameters: ParameterView[]
   frozenBy: string | null
   readings: number
   targetsTested: number
@@ -198,6 +213,8 @@ export interface RevisionView extends RevisionBrief {
 }
 
 export interface RevisionDetail extends RevisionView {
+  /** the effective parameters: its own and those it inherits from its ancestors */
+  parameters: (ParameterView & { inherited: boolean })[]
   build: { id: string, slug: string, name: string }
   role: Role
   targets: (TargetView & { stats: HistoryEntry | null, cantEvaluate: string | null, readings: ReadingDetail[] })[]
@@ -226,10 +243,14 @@ export interface ComparedTarget {
   note: string | null
 }
 
+/** One side of a parameter in a comparison: the revision's effective value. */
+export interface ParameterSide { value: number | string, unit: string | null, tolerance: number | null, inherited: boolean }
+
 export interface ParameterDiff {
+  key: string
   name: string
-  a: { value: number | string, unit: string | null } | null
-  b: { value: number | string, unit: string | null } | null
+  a: ParameterSide | null
+  b: ParameterSide | null
   differs: boolean
 }
 
@@ -300,4 +321,50 @@ export interface UnitCheck {
   si: string
   /** e.g. "1 lbf/in = 0.175127 N/mm"; null for the SI unit itself */
   conversion: string | null
+}
+
+/** A value with its standard uncertainty, in the target's display unit. */
+export interface ValueWithU { value: number, u: number | null }
+
+/** GET /api/v1/builds/:build/targets/:key/design */
+export interface TargetDesign {
+  target: TargetView
+  model: string | null
+  revisions: {
+    revision: string
+    predicted: { value: number, u: number } | null
+    measured: { mean: number, u: number | null } | null
+    ratio: ValueWithU | null
+    /** why there is no prediction on this revision */
+    cantPredict: string | null
+  }[]
+  /** nu: the factor's effective degrees of freedom (Welch–Satterthwaite); null when infinite */
+  calibration: { factor: number, u: number | null, nu: number | null, revisions: string[], method: 'weighted' | 'plain' } | null
+  /** the revision the sensitivity is taken on: the latest with a prediction */
+  sensitivityRevision: string | null
+  sensitivity: { parameter: string, elasticity: number | null, share: number }[]
+}
+
+/** POST /api/v1/builds/:build/targets/:key/solve */
+export interface SolveResult {
+  parameter: string
+  value: number
+  unit: string | null
+  factor: number
+  /** false when no revision has both a prediction and a measurement (factor 1) */
+  calibrated: boolean
+  revision: string
+  margin: 'none' | '95'
+  /** the calibrated prediction at `value`, in the target's display unit */
+  predicted: number
+  u: number
+  /** the value it meets: the threshold, or the band's middle */
+  goal: number
+}
+
+/** GET /api/v1/builds/:build/targets/:key/plan */
+export interface SamplePlan {
+  samplesNeeded: number | null
+  reason: string
+  revision: string
 }

@@ -51,10 +51,16 @@ function normalizeFormula(formula: string): string {
     .replace(/³/g, '^3')
 }
 
+// Formulas read lately (only those that passed the grammar), by their folded text; bounded.
+const PARSED_MAX = 500
+const parsedFormulas = new Map<string, Parsed>()
+
 function parse(formula: string): Parsed {
   const text = normalizeFormula(String(formula ?? '')).trim()
   if (text === '') throw new FormulaError('syntax', 'The formula is empty')
   if (text.length > FORMULA_MAX_LENGTH) throw new FormulaError('syntax', `The formula is longer than ${FORMULA_MAX_LENGTH} characters`)
+  const seen = parsedFormulas.get(text)
+  if (seen) return seen
   let node: MathNode
   try {
     node = math.parse(text)
@@ -64,7 +70,10 @@ function parse(formula: string): Parsed {
   }
   const symbols = new Set<string>()
   check(node, symbols)
-  return { node, symbols: [...symbols] }
+  const parsed = { node, symbols: [...symbols] }
+  if (parsedFormulas.size >= PARSED_MAX) parsedFormulas.clear()
+  parsedFormulas.set(text, parsed)
+  return parsed
 }
 
 /** Walks the tree and refuses anything outside the small grammar formulas are allowed. */
@@ -203,8 +212,9 @@ function symbolsOf(node: MathNode): string[] {
   return [...found]
 }
 
-/** The dimension of a display unit, as a FormulaError when the unit is not known. */
+/** The dimension of a display unit, as a FormulaError when the unit is not known; '' is dimensionless. */
 function dimsOfTarget(unit: string, whose: string): Dims {
+  if (unit === '') return NONE
   try {
     return dimsOfUnit(unit)
   }
@@ -214,27 +224,46 @@ function dimsOfTarget(unit: string, whose: string): Dims {
   }
 }
 
-function checkParsed(parsed: Parsed, inputs: Record<string, { unit: string }>, resultUnit: string): void {
+/** How messages name a formula and its inputs: derived targets' formulas over targets, or design models over parameters. */
+export interface FormulaWording {
+  /** "formula" or "model" */
+  formula: string
+  /** ends "The formula uses "x", which …" for one unknown key */
+  unknownOne: string
+  /** … for several */
+  unknownMany: string
+  /** names an input in a unit problem, e.g. 'Target "x"' */
+  input: (key: string) => string
+}
+
+export const TARGET_WORDING: FormulaWording = {
+  formula: 'formula',
+  unknownOne: 'is not a target of this build',
+  unknownMany: 'are not targets of this build',
+  input: key => `Target "${key}"`,
+}
+
+function checkParsed(parsed: Parsed, inputs: Record<string, { unit: string }>, resultUnit: string, words: FormulaWording = TARGET_WORDING): void {
   const unknown = parsed.symbols.filter(s => !Object.hasOwn(inputs, s))
   if (unknown.length > 0) {
     const list = unknown.map(k => `"${k}"`).join(', ')
     throw new FormulaError(
       'unknown-key',
       unknown.length === 1
-        ? `The formula uses ${list}, which is not a target of this build`
-        : `The formula uses ${list}, which are not targets of this build`,
+        ? `The ${words.formula} uses ${list}, which ${words.unknownOne}`
+        : `The ${words.formula} uses ${list}, which ${words.unknownMany}`,
       unknown,
     )
   }
   const dims: Record<string, Dims> = {}
-  for (const key of parsed.symbols) dims[key] = dimsOfTarget(inputs[key]!.unit, `Target "${key}"`)
+  for (const key of parsed.symbols) dims[key] = dimsOfTarget(inputs[key]!.unit, words.input(key))
   const target = dimsOfTarget(resultUnit, 'This target')
   const gives = dimsOf(parsed.node, dims)
   if (!sameDims(gives, target)) {
     const unit = parseUnit(resultUnit)
     throw new FormulaError(
       'dimension',
-      `The formula gives ${describe(gives)} but this target is measured in ${quantityLabel(unit.quantity)} (${unit.unit})`,
+      `The ${words.formula} gives ${describe(gives)} but this target is measured in ${quantityLabel(unit.quantity)} (${unit.unit})`,
     )
   }
 }
@@ -247,9 +276,10 @@ export function checkFormula(
   formula: string,
   inputs: Record<string, { unit: string }>,
   resultUnit: string,
+  words: FormulaWording = TARGET_WORDING,
 ): { symbols: string[] } {
   const parsed = parse(formula)
-  checkParsed(parsed, inputs, resultUnit)
+  checkParsed(parsed, inputs, resultUnit, words)
   return { symbols: parsed.symbols }
 }
 
@@ -302,7 +332,7 @@ export interface DerivedInput {
   mean: number
   /** Its standard uncertainty in SI, or null when it has none. */
   u: number | null
-  /** Its display unit (for the dimension check). */
+  /** Its display unit (for the dimension check); '' for a dimensionless number. */
   unit: string
 }
 
@@ -315,10 +345,35 @@ export interface DerivedValue {
   partials: Record<string, number>
 }
 
+// Compiled trees and derivatives of the parsed formulas (held as long as the tree is): a solver
+// evaluates one formula hundreds of times.
+const compiled = new WeakMap<MathNode, ReturnType<MathNode['compile']>>()
+const derivatives = new WeakMap<MathNode, Map<string, MathNode>>()
+
+/** ∂node/∂key (exact, unsimplified), kept with the parsed tree it came from. */
+function derivativeOf(node: MathNode, key: string): MathNode {
+  let byKey = derivatives.get(node)
+  if (!byKey) {
+    byKey = new Map()
+    derivatives.set(node, byKey)
+  }
+  let d = byKey.get(key)
+  if (!d) {
+    d = math.derivative(node, key, { simplify: false })
+    byKey.set(key, d)
+  }
+  return d
+}
+
 function evaluateNumber(node: MathNode, scope: Record<string, number>): number {
   let value: unknown
   try {
-    value = node.compile().evaluate({ ...scope })
+    let code = compiled.get(node)
+    if (!code) {
+      code = node.compile()
+      compiled.set(node, code)
+    }
+    value = code.evaluate({ ...scope })
   }
   catch {
     value = Number.NaN
@@ -337,9 +392,10 @@ export function evaluateDerived(
   formula: string,
   inputs: Record<string, DerivedInput>,
   resultUnit: string,
+  words: FormulaWording = TARGET_WORDING,
 ): DerivedValue {
   const parsed = parse(formula)
-  checkParsed(parsed, inputs, resultUnit)
+  checkParsed(parsed, inputs, resultUnit, words)
 
   const scope: Record<string, number> = {}
   for (const key of parsed.symbols) {
@@ -365,7 +421,7 @@ export function evaluateDerived(
   let anyU = false
   for (const key of parsed.symbols) {
     const u = inputs[key]!.u
-    const c = evaluateNumber(math.derivative(parsed.node, key, { simplify: false }), scope)
+    const c = evaluateNumber(derivativeOf(parsed.node, key), scope)
     partials[key] = c
     if (u === null) continue
     anyU = true

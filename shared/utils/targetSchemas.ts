@@ -35,6 +35,15 @@ export const formulaField = z.string({ error: 'The formula is text, e.g. wheel_t
   .max(FORMULA_MAX_LENGTH, `A formula has at most ${FORMULA_MAX_LENGTH} characters`)
   .nullable()
   .transform(f => (f ? f : null))
+/** A design model over the revisions' parameter keys (shared/utils/design.ts); empty or null for none. */
+export const modelField = z.string({ error: 'The model is text, e.g. motor_speed * wheel_radius' })
+  .trim()
+  .max(FORMULA_MAX_LENGTH, `A model has at most ${FORMULA_MAX_LENGTH} characters`)
+  .nullable()
+  .transform(f => (f ? f : null))
+const modelDescription = 'a design model predicting this target from the revisions’ design parameters, e.g. "motor_speed * wheel_radius" '
+  + '(parameter keys, numbers, + − * / ^, parentheses, pi and the functions of formulas). Parameters are taken in SI; angles are dimensionless (rpm × mm is a speed). '
+  + 'Its dimension must be this target’s quantity (422), every key must be a numeric parameter of some revision of the build (422); null removes it.'
 const targetNameField = nameField
 
 export interface TargetRuleInput {
@@ -82,6 +91,7 @@ export const TargetBody = z.object({
     description: 'makes it a derived target: a formula over other targets’ keys, e.g. "wheel_torque * wheel_speed" (numbers, keys, + − * / ^, parentheses, pi, sqrt() abs() sin() cos() tan() exp() log() log10()). '
       + 'Each key stands for that target’s pooled mean in SI; the result must be of this target’s quantity. A derived target takes no readings.',
   }),
+  model: modelField.optional().meta({ description: modelDescription }),
 }).superRefine(refineRule)
   .meta({ examples: [{ key: 'top_speed', name: 'Top speed on the flat', unit: 'km/h', comparator: 'atLeast', threshold: 25, stretch: 28, noiseBand: 0.5 }] })
 
@@ -96,6 +106,7 @@ export const TargetPatch = z.object({
   noiseBand: numberField('The noise band').min(0, 'The noise band is 0 or more').nullable().optional(),
   notes: notesField.optional(),
   formula: formulaField.optional(),
+  model: modelField.optional().meta({ description: modelDescription }),
   archived: z.boolean({ error: 'archived is true or false' }).optional(),
 })
 

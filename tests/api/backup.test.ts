@@ -95,7 +95,7 @@ describe('backup and restore of the whole installation', () => {
       expect(lost, `${lost.length} acknowledged readings missing after restore (${during} were written during the backup)`).toEqual([])
       // the cached statistics came with their readings
       const cell = await restored('cell_stats').where({ target_id: t.id, revision_id: r.id }).first()
-      expect(cell.readings).toBe(ids.size)
+      expect(cell?.readings).toBe(ids.size)
     }
     finally {
       await restored.destroy()

@@ -89,13 +89,15 @@ describe('comparing revisions', () => {
     expect(twice).toMatchObject({ reason: 'uncertainty', p: null, real })
   })
 
-  it('shows the design parameters side by side, marking what differs', async () => {
+  it('shows the effective design parameters side by side by key, marking what differs', async () => {
     const { parameters } = (await compare('R1', 'R3')).body
+    const side = (value: number | string, unit: string | null, inherited = false) => ({ value, unit, tolerance: null, inherited })
     expect(parameters).toEqual([
-      { name: 'Gear ratio', a: { value: 1, unit: null }, b: { value: 1.4, unit: null }, differs: true },
-      { name: 'Current limit', a: { value: 35, unit: 'A' }, b: { value: 35, unit: 'A' }, differs: false },
-      { name: 'Carrier', a: { value: 'steel', unit: null }, b: null, differs: true },
-      { name: 'Ramp', a: null, b: { value: 150, unit: 'ms' }, differs: true },
+      { key: 'gear_ratio', name: 'Gear ratio', a: side(1, null), b: side(1.4, null), differs: true },
+      { key: 'current_limit', name: 'Current limit', a: side(35, 'A'), b: side(35, 'A'), differs: false },
+      // R3 doesn't set the carrier: it inherits R1's
+      { key: 'carrier', name: 'Carrier', a: side('steel', null), b: side('steel', null, true), differs: false },
+      { key: 'ramp', name: 'Ramp', a: null, b: side(150, 'ms'), differs: true },
     ])
   })
 

@@ -48,11 +48,41 @@ describe('migrations on a scratch database', () => {
     expect(pending).toEqual([])
   })
 
+  it('stored design parameters {name, value, unit} take keys from their names, and lose them again going down', async () => {
+    await db.migrate.latest()
+    // back to before the typed parameters (and whatever came after them)
+    while (await db.migrate.currentVersion() >= '202612030200') await db.migrate.down()
+    const [team] = await db('teams').insert({ name: 'Migration team', slug: 'migration-team' }).returning('id') as { id: string }[]
+    const [build] = await db('builds').insert({ team_id: team!.id, name: 'Migration build', slug: 'migration-build' }).returning('id') as { id: string }[]
+    const old = [
+      { name: 'Wheel radius (front)', value: 50, unit: 'mm' },
+      { name: 'Gear ratio', value: 1.4, unit: null },
+      { name: 'Gear ratio', value: 2, unit: null },
+      { name: 'pi', value: 3, unit: null },
+      { name: 'Carrier', value: 'S235 steel', unit: null },
+    ]
+    const [rev] = await db('revisions').insert({ build_id: build!.id, label: 'R1', seq: 1, parameters: JSON.stringify(old) }).returning('id') as { id: string }[]
+    await db.migrate.up()
+    const up = (await db('revisions').where({ id: rev!.id }).first())!.parameters
+    expect(up).toEqual([
+      { key: 'wheel_radius_front', name: 'Wheel radius (front)', value: 50, unit: 'mm', tolerance: null },
+      { key: 'gear_ratio', name: 'Gear ratio', value: 1.4, unit: null, tolerance: null },
+      { key: 'gear_ratio_2', name: 'Gear ratio', value: 2, unit: null, tolerance: null },
+      { key: 'pi_param', name: 'pi', value: 3, unit: null, tolerance: null },
+      { key: 'carrier', name: 'Carrier', value: 'S235 steel', unit: null, tolerance: null },
+    ])
+    await db.migrate.down()
+    expect((await db('revisions').where({ id: rev!.id }).first())!.parameters).toEqual(old)
+    await db('teams').where({ id: team!.id }).delete()
+    await db.migrate.latest()
+  })
+
   it('stated readings: existing readings and cells come through unchanged; a rollback refuses to drop stated ones', async () => {
     await db.migrate.latest()
-    // back to the schema before stated readings, with a samples reading and its cell in it
-    const [, undone] = await db.migrate.down()
-    expect(undone).toEqual(['202612030100_add-stated-readings.ts'])
+    // back to the schema before stated readings (and whatever came after them), with a samples reading and its cell in it
+    const undone: string[] = []
+    while (await db.migrate.currentVersion() >= '202612030100') undone.push(...(await db.migrate.down())[1] as string[])
+    expect(undone.at(-1)).toBe('202612030100_add-stated-readings.ts')
     const team = (await db('teams').insert({ name: 'Migration team', slug: `migration-${Date.now()}` }).returning('id'))[0]!
     const build = (await db('builds').insert({ team_id: team.id, name: 'Migration build', slug: `migration-build-${Date.now()}` }).returning('id'))[0]!
     const target = (await db('targets').insert({ build_id: build.id, key: 'thrust', name: 'Thrust', unit: 'N', quantity: 'force', comparator: 'atLeast', threshold: 10 }).returning('id'))[0]!

@@ -26,10 +26,12 @@ describe('revisions', () => {
     expect(r1.body).toMatchObject({
       label: 'R1', seq: 1, parent: null, summary: 'First spin', changes: ['Stock motor', 'Steel carrier'], builtOn: '2026-02-02', frozen: false, frozenAt: null, readings: 0,
     })
-    // known units come back in their canonical spelling; others as typed
+    // known units come back in their canonical spelling; others as typed (the older {name, value}
+    // shape: each takes a key made from its name, and no tolerance)
     expect(r1.body.parameters).toEqual([
-      { name: 'Gear ratio', value: 1, unit: null }, { name: 'Current limit', value: 35, unit: 'A' },
-      { name: 'Lever', value: 1.2, unit: 'N·m' }, { name: 'Teeth', value: 36, unit: 'teeth' }, { name: 'Carrier', value: 'S235 steel', unit: null },
+      { key: 'gear_ratio', name: 'Gear ratio', value: 1, unit: null, tolerance: null }, { key: 'current_limit', name: 'Current limit', value: 35, unit: 'A', tolerance: null },
+      { key: 'lever', name: 'Lever', value: 1.2, unit: 'N·m', tolerance: null }, { key: 'teeth', name: 'Teeth', value: 36, unit: 'teeth', tolerance: null },
+      { key: 'carrier', name: 'Carrier', value: 'S235 steel', unit: null, tolerance: null },
     ])
     const r2 = await w.engineer.client.post(`/api/v1/builds/${b.slug}/revisions`, { label: 'R2' })
     expect(r2.body).toMatchObject({ label: 'R2', seq: 2, parent: 'R1', changes: [], parameters: [] })
@@ -74,7 +76,7 @@ describe('revisions', () => {
       ['the year 0', { builtOn: '0000-01-01' }, 'builtOn'],
       ['a NUL character in the summary', { summary: 'a\u0000b' }, 'summary'],
       ['a NUL character in a change', { changes: ['a\u0000b'] }, 'changes.0'],
-      ['a parameter without a name', { parameters: [{ value: 3 }] }, 'parameters.0.name'],
+      ['a parameter without a key or a name', { parameters: [{ value: 3 }] }, 'parameters.0.key'],
       ['a parameter value that is NaN-like', { parameters: [{ name: 'k', value: null }] }, 'parameters.0.value'],
     ])('400 for %s', async (_name, body, field) => {
       const res = await expectRefused(w.build.id, 400, () => w.engineer.client.post(v1(), { label: uniqueKey('R'), ...body }))
@@ -96,7 +98,7 @@ describe('revisions', () => {
     await addReading(w.engineer.client, b.slug, { revision: 'R2', target: speed.key, values: [13.5], unit: 'mph' })
     const res = await w.reviewer.client.get(`/api/v1/builds/${b.slug}/revisions/r2`)
     expect(res.status).toBe(200)
-    expect(res.body).toMatchObject({ label: 'R2', parent: 'R1', changes: ['Lighter carrier'], parameters: [{ name: 'Gear ratio', value: 1.4, unit: null }], readings: 2, targetsTested: 1, role: 'reviewer' })
+    expect(res.body).toMatchObject({ label: 'R2', parent: 'R1', changes: ['Lighter carrier'], parameters: [{ key: 'gear_ratio', name: 'Gear ratio', value: 1.4, unit: null, tolerance: null, inherited: false }], readings: 2, targetsTested: 1, role: 'reviewer' })
     const byKey = Object.fromEntries(res.body.targets.map((t: { key: string }) => [t.key, t]))
     expect(byKey[speed.key].readings).toHaveLength(2)
     expect(byKey[speed.key].stats).toMatchObject({ revision: 'R2', readings: 2, n: 4 })

@@ -11,12 +11,15 @@ import { testDb } from './api'
 const BOOKKEEPING: Record<string, string[]> = {
   rig_tokens: ['last_used_at', 'last_used_ip'],
   events: ['fanned_out_at'],
-  deliveries: ['claimed_at', 'sent_at', 'status'],
   mention_notices: ['sent_at'],
-  subscriptions: ['digested_through', 'updated_at'],
 }
-/** failed sign-ins are recorded on purpose (the throttle counts them); they are not data */
-const SKIPPED = new Set(['login_failures', 'knex_migrations', 'knex_migrations_lock'])
+/**
+ * Failed sign-ins are recorded on purpose (the throttle counts them); they are not data. The
+ * e-mail queue's worker writes deliveries and (for a periodic digest) a member's subscription row
+ * in the background at any moment, whatever the request under test did; the digest tests check
+ * those tables themselves.
+ */
+const SKIPPED = new Set(['login_failures', 'knex_migrations', 'knex_migrations_lock', 'deliveries', 'subscriptions'])
 
 let tables: string[] | undefined
 

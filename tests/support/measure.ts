@@ -19,6 +19,8 @@ export interface TargetInput {
   notes?: string
   /** a derived target's formula */
   formula?: string | null
+  /** a design model over the revisions' parameters */
+  model?: string | null
 }
 
 export async function newTarget(c: Client, build: string, overrides: TargetInput = {}) {

@@ -100,6 +100,22 @@ async function freshRevision(w: World, frozen = false) {
   return label
 }
 
+/** A target with a design model over a parameter of one revision, per world (issue 15). */
+const designed = new WeakMap<World, Promise<{ key: string, label: string }>>()
+function designBuild(w: World) {
+  if (!designed.has(w)) {
+    designed.set(w, (async () => {
+      const key = `design_${randomBytes(4).toString('hex')}`
+      const label = `D${randomBytes(4).toString('hex')}`
+      const r = await w.owner.client.post(`/api/v1/builds/${w.build.slug}/revisions`, { label, parameters: [{ key: 'pull_force', value: 2, unit: 'N', tolerance: 0.1 }] })
+      const t = await w.owner.client.post(`/api/v1/builds/${w.build.slug}/targets`, { key, name: 'Designed pull', unit: 'N', comparator: 'atLeast', threshold: 10, model: 'pull_force * 6' })
+      if (t.status !== 201 || r.status !== 201) throw new Error(`matrix design fixtures: ${t.status} ${r.status}`)
+      return { key, label }
+    })())
+  }
+  return designed.get(w)!
+}
+
 // ---- findings (issue 6) ----
 /** A new finding on the world's build: each call gets its own, at version 1. */
 async function freshFinding(w: World) {
@@ -232,6 +248,19 @@ export const routes: RouteCase[] = [
     prepare: async (w) => {
       const { label } = await measuredBuild(w)
       return { params: base(w), query: `a=${label}&b=${await freshRevision(w)}` }
+    },
+  },
+
+  // design math beside the measurement (issue 15)
+  { method: 'GET', path: '/api/v1/builds/:build/targets/:key/design', expect: e(401, 404, 404, 200, 200, 200), prepare: async w => ({ params: { ...base(w), key: (await designBuild(w)).key } }) },
+  { method: 'POST', path: '/api/v1/builds/:build/targets/:key/solve', expect: e(401, 404, 404, 200, 200, 200), prepare: async w => ({ params: { ...base(w), key: (await designBuild(w)).key }, body: { parameter: 'pull_force' } }) },
+  {
+    method: 'GET',
+    path: '/api/v1/builds/:build/targets/:key/plan',
+    expect: e(401, 404, 404, 200, 200, 200),
+    prepare: async (w) => {
+      const { key, label } = await designBuild(w)
+      return { params: { ...base(w), key }, query: `revision=${label}` }
     },
   },
 

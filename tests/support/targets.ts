@@ -30,6 +30,7 @@ export function makeScoreTarget(overrides: Partial<ScoreTarget> = {}): ScoreTarg
     hazard: null,
     derived: false,
     formula: null,
+    model: null,
     status: 'untested',
     latest: null,
     margin: null,

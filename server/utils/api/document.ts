@@ -2,8 +2,8 @@ import { z } from 'zod'
 import {
   ApiError, BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
   ArchiveImportedOut, FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixLandedOut, FixOut, ForecastOut, HistoryEntryOut,
-  MoveResultOut, OpenFindingsOut, ReadingCreatedOut, ReadingDetailOut, RevisionDetailOut, RevisionOut, ScoreboardOut,
-  SignedInOut, SubscriptionOut, TargetDetailOut, TargetOrderOut, TargetOut, TeamCreatedOut, TeamOut,
+  MoveResultOut, OpenFindingsOut, PlanOut, ReadingCreatedOut, ReadingDetailOut, RevisionDetailOut, RevisionOut, ScoreboardOut,
+  SignedInOut, SolveOut, SubscriptionOut, TargetDesignOut, TargetDetailOut, TargetOrderOut, TargetOut, TeamCreatedOut, TeamOut,
 } from './responses'
 import { API_TAGS, apiRoutes, type ApiAccess, type ApiAnswer, type ApiRoute } from './routes'
 
@@ -18,7 +18,7 @@ const ERROR_TEXT: Record<number, string> = {
   403: 'The role is too low, or a rig token used outside its build routes',
   404: 'Not found, or not visible to the caller',
   409: 'Conflicts with the current state (a duplicate, a frozen revision)',
-  422: 'A unit that is unknown or of another quantity; a formula naming a key that is not a target of the build, giving another quantity than the target’s, or closing a circle of formulas',
+  422: 'A unit that is unknown or of another quantity; a formula naming a key that is not a target of the build, giving another quantity than the target’s, or closing a circle of formulas; a model naming a key no revision defines, or giving another quantity; no solution in the solver’s range',
 }
 
 /** Answers named as components (the names earlier versions of this document used). */
@@ -54,6 +54,9 @@ const ANSWERS: Record<string, z.ZodType> = {
   FileList: FileListOut,
   CsvPreview: CsvPreviewOut,
   CsvImported: CsvImportedOut,
+  TargetDesign: TargetDesignOut,
+  Solved: SolveOut,
+  SamplePlan: PlanOut,
   ArchiveImported: ArchiveImportedOut,
 }
 

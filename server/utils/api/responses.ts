@@ -2,7 +2,7 @@ import { z } from 'zod'
 import type { CsvImported, CsvPreview, FileCreated, FileList } from '../../../shared/types/files'
 import type { BoardData, CommentView, FindingDetail, FindingSummary, FixView, OpenFindingsByTarget } from '../../../shared/types/findings'
 import type {
-  Comparison, HistoryEntry, ReadingCreated, RevisionDetail, RevisionView, Scoreboard, TargetDetail, TargetView,
+  Comparison, HistoryEntry, ReadingCreated, RevisionDetail, RevisionView, SamplePlan, Scoreboard, SolveResult, TargetDesign, TargetDetail, TargetView,
 } from '../../../shared/types/api'
 import type { ForecastView } from '../../../shared/utils/forecast'
 import { FILE_KINDS } from '../../../shared/utils/contentTypes'
@@ -85,6 +85,15 @@ export const TargetOut = z.object({
   hazard: z.enum(['electrical', 'thermal', 'mechanical']).nullable(),
   derived: described(z.boolean(), 'evaluated from other targets by `formula`; takes no readings of its own'),
   formula: z.string().nullable(),
+  model: described(z.string().nullable(), 'a design model over the revisions’ parameter keys predicting this target'),
+})
+
+const ParameterOut = z.object({
+  key: described(z.string(), 'the name models use'),
+  name: z.string(),
+  value: described(z.union([z.number(), z.string()]), 'as entered: a number in `unit`, or a text models can’t use'),
+  unit: described(z.string().nullable(), 'null: dimensionless'),
+  tolerance: described(z.number().nullable(), '± half-width in `unit` (rectangular, u = a/√3); null: exact'),
 })
 
 const RevisionBriefShape = {
@@ -101,7 +110,7 @@ const RevisionBriefShape = {
 export const RevisionOut = z.object({
   ...RevisionBriefShape,
   changes: z.array(z.string()),
-  parameters: z.array(z.object({ name: z.string(), value: z.union([z.number(), z.string()]), unit: z.string().nullable() })),
+  parameters: described(z.array(ParameterOut), 'the design parameters this revision sets itself'),
   frozenBy: z.string().nullable(),
   readings: z.int(),
   targetsTested: z.int(),
@@ -230,10 +239,22 @@ export const TargetDetailOut = z.object({
     'the revisions with a value, real movements first (by |delta|, then p), with their changes and the fixes that landed in them',
   ),
   inputs: described(z.array(z.object({ key: z.string(), name: z.string(), unit: z.string(), derived: z.boolean() })), 'a derived target’s inputs'),
+  cautions: described(z.array(z.object({
+    hazard: z.enum(['electrical', 'thermal', 'mechanical']),
+    value: described(z.number(), 'the number the caution is about, in SI'),
+    unit: described(z.string(), 'its SI unit: J (a projectile’s kinetic energy), m/s (a rim speed), A (a peak current)'),
+    text: described(z.string(), 'the caution with its number and the usual precaution'),
+    basis: described(z.string(), 'what the number was worked out from'),
+  })), 'cautions with numbers from the target and the latest revision’s design parameters (docs/computation.md, Cautions)'),
 })
 
 const CompareSideOut = z.object({ ...statsShape, readings: described(z.int(), 'readings pooled'), status: measuredStatus })
-const ParameterSide = z.object({ value: z.union([z.number(), z.string()]), unit: z.string().nullable() })
+const ParameterSide = z.object({
+  value: z.union([z.number(), z.string()]),
+  unit: z.string().nullable(),
+  tolerance: z.number().nullable(),
+  inherited: described(z.boolean(), 'set on an ancestor of the revision'),
+})
 
 export const ComparisonOut = z.object({
   build: BuildRef,
@@ -250,10 +271,17 @@ export const ComparisonOut = z.object({
     })),
     'every active target, in strip order',
   ),
-  parameters: z.array(z.object({ name: z.string(), a: ParameterSide.nullable(), b: ParameterSide.nullable(), differs: z.boolean() })),
+  parameters: described(
+    z.array(z.object({ key: z.string(), name: z.string(), a: ParameterSide.nullable(), b: ParameterSide.nullable(), differs: z.boolean() })),
+    'the two revisions’ effective design parameters (own and inherited) side by side, by key',
+  ),
 })
 
 export const RevisionDetailOut = RevisionOut.extend({
+  parameters: described(
+    z.array(ParameterOut.extend({ inherited: described(z.boolean(), 'set on an ancestor, not on this revision') })),
+    'the effective design parameters: its own, and every parameter of its ancestors it doesn’t set itself',
+  ),
   build: BuildRef,
   role,
   targets: z.array(TargetOut.extend({
@@ -435,6 +463,53 @@ export const SubscriptionOut = z.object({ build: described(z.string(), 'the buil
 
 export const SignedInOut = z.object({ user: z.object({ id: z.string(), name: z.string(), email: z.string() }) })
 
+const inDisplayUnit = 'in the target’s display unit'
+const ValueU = z.object({ value: z.number(), u: z.number().nullable() })
+
+export const TargetDesignOut = z.object({
+  target: TargetOut,
+  model: z.string().nullable(),
+  revisions: described(z.array(z.object({
+    revision: z.string(),
+    predicted: described(z.object({ value: z.number(), u: z.number() }).nullable(), `the model on the revision’s effective parameters, u from their tolerances (GUM eq. 10), ${inDisplayUnit}`),
+    measured: described(z.object({ mean: z.number(), u: z.number().nullable() }).nullable(), `the pooled mean and combined standard uncertainty, ${inDisplayUnit}`),
+    ratio: described(ValueU.nullable(), 'measured mean / predicted value; u = ratio·√((u_m/m)² + (u_p/p)²), null when the mean has none'),
+    cantPredict: described(z.string().nullable(), 'why there is no prediction on this revision'),
+  })), 'every revision, oldest first'),
+  calibration: described(z.object({
+    factor: z.number(),
+    u: z.number().nullable(),
+    nu: described(z.number().nullable(), 'the factor’s effective degrees of freedom (Welch–Satterthwaite over the cells’ ν_eff); null when infinite'),
+    revisions: described(z.array(z.string()), 'the revisions with both a prediction and a measurement'),
+    method: described(z.enum(['weighted', 'plain']), 'inverse-variance weighted mean of the ratios, or their plain mean when a ratio’s u is 0 or unknown'),
+  }).nullable(), 'null when no revision has both'),
+  sensitivityRevision: described(z.string().nullable(), 'the latest revision with a prediction, where the sensitivities are taken'),
+  sensitivity: z.array(z.object({
+    parameter: z.string(),
+    elasticity: described(z.number().nullable(), '∂ln f/∂ln p'),
+    share: described(z.number(), 'the parameter’s share of the predicted u²'),
+  })),
+})
+
+export const SolveOut = z.object({
+  parameter: z.string(),
+  value: described(z.number(), 'in the parameter’s unit'),
+  unit: z.string().nullable(),
+  factor: described(z.number(), 'the calibration factor used (1 without a calibration)'),
+  calibrated: described(z.boolean(), 'false when no revision has both a prediction and a measurement yet'),
+  revision: described(z.string(), 'the revision whose other parameters were kept'),
+  margin: z.enum(['none', '95']),
+  predicted: described(z.number(), `the calibrated prediction at that value, ${inDisplayUnit}`),
+  u: described(z.number(), 'its standard uncertainty'),
+  goal: described(z.number(), 'the value met: the threshold, or the middle of a between band'),
+})
+
+export const PlanOut = z.object({
+  samplesNeeded: described(z.int().nullable(), 'the smallest n ≥ 2 whose 95 % interval of the mean clears the threshold; null with the reason'),
+  reason: z.string(),
+  revision: z.string(),
+})
+
 // ---- each schema has the shape of the type its route returns ----
 type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false
 function sameShape<_T extends true>() {}
@@ -458,3 +533,6 @@ sameShape<Same<z.output<typeof FindingDetailOut>, FindingDetail>>()
 sameShape<Same<z.output<typeof FileListOut>, FileList>>()
 sameShape<Same<z.output<typeof CsvPreviewOut>, CsvPreview>>()
 sameShape<Same<z.output<typeof CsvImportedOut>, CsvImported>>()
+sameShape<Same<z.output<typeof TargetDesignOut>, TargetDesign>>()
+sameShape<Same<z.output<typeof SolveOut>, SolveResult>>()
+sameShape<Same<z.output<typeof PlanOut>, SamplePlan>>()

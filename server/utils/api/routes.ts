@@ -7,13 +7,13 @@ import {
   CommentBody, FindingCreate, FindingListQuery, FindingPatch, FixBody, FixPatch, MoveBody,
 } from '../../../shared/utils/findingSchemas'
 import { ReadingBody } from '../../../shared/utils/readingSchemas'
-import { CompareQuery, RevisionBody, RevisionPatch, UnfreezeBody } from '../../../shared/utils/revisionSchemas'
+import { CompareQuery, PlanQuery, RevisionBody, RevisionPatch, SolveBody, UnfreezeBody } from '../../../shared/utils/revisionSchemas'
 import { TargetBody, TargetListQuery, TargetOrderBody, TargetPatch } from '../../../shared/utils/targetSchemas'
 import {
   ArchiveImportedOut, BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
   FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixOut, MoveResultOut, OpenFindingsOut, ReadingCreatedOut,
-  RevisionDetailOut, RevisionOut, ScoreboardOut, SignedInOut, SubscriptionOut, TargetDetailOut, TargetOrderOut, TargetOut,
-  TeamCreatedOut, TeamOut,
+  PlanOut, RevisionDetailOut, RevisionOut, ScoreboardOut, SignedInOut, SolveOut, SubscriptionOut, TargetDesignOut, TargetDetailOut,
+  TargetOrderOut, TargetOut, TeamCreatedOut, TeamOut,
 } from './responses'
 
 // The public API, one entry per route file: the OpenAPI document (./document.ts) is generated from
@@ -149,7 +149,8 @@ export const apiRoutes: ApiRoute[] = [
     path: '/api/v1/builds/{build}/targets',
     tag: 'Targets',
     summary: 'Create a target; thresholds are given in its display unit',
-    description: 'With `formula` the target is derived: 400 for a formula that can’t be read, 422 naming an unknown key, both quantities of a dimension mismatch, or the circle of formulas.',
+    description: 'With `formula` the target is derived: 400 for a formula that can’t be read, 422 naming an unknown key, both quantities of a dimension mismatch, or the circle of formulas. '
+      + 'With `model` it gets a design model over the revisions’ parameters: 400 for one that can’t be read, 422 for a key no revision defines, a text parameter, or a dimension other than the target’s (naming both).',
     access: 'session-or-rig',
     params: build,
     body: TargetBody,
@@ -161,7 +162,10 @@ export const apiRoutes: ApiRoute[] = [
     method: 'post',
     path: '/api/v1/builds/{build}/revisions',
     tag: 'Revisions and readings',
-    summary: 'Create a revision',
+    summary: 'Create a revision, with its design parameters',
+    description: 'Parameters are `{key, name, value, unit, tolerance}`; the revision inherits every parameter of its parent it doesn’t set itself. '
+      + 'The older shape `{name, value, unit}` is still accepted (the key of the ancestor’s parameter of that name, or one made from the name). '
+      + '400 for a key given twice, a key models read otherwise, or, with a key, a unit Ratchet can’t read.',
     access: 'session-or-rig',
     params: build,
     body: RevisionBody,
@@ -353,6 +357,48 @@ export const apiRoutes: ApiRoute[] = [
     errors: [400, 401, 403, 404, 422],
   },
   {
+    method: 'get',
+    path: '/api/v1/builds/{build}/targets/{key}/design',
+    tag: 'Targets',
+    summary: 'Design math beside the measurement: the model’s prediction against the pooled mean on every revision, the calibration factor and the sensitivities',
+    description: 'Every value is in the target’s display unit. `predicted.u` propagates the parameters’ tolerances (rectangular, u = a/√3) to first order (GUM eq. 10); '
+      + '`ratio` = measured mean / predicted value; the calibration factor is the inverse-variance weighted mean of the ratios (the plain mean when a ratio’s u is 0 or unknown); '
+      + 'the sensitivities (elasticity ∂ln f/∂ln p, share of the predicted u²) are taken on the latest revision with a prediction. A revision without a prediction says why in `cantPredict`.',
+    access: 'session-or-rig',
+    params: buildAnd(targetKey),
+    ok: { 200: { description: 'OK', schema: TargetDesignOut } },
+    errors: [401, 404],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/builds/{build}/targets/{key}/solve',
+    tag: 'Targets',
+    summary: 'Solve for what to build: the value of one design parameter at which the calibrated prediction meets the threshold (any member; nothing is stored)',
+    description: 'The calibrated prediction is the calibration factor (1 without one) × the model, the other parameters as on `revision` (default the latest). '
+      + 'It meets the threshold (the band’s middle for between); with `margin: "95"` its lower 95 % bound (upper for atMost), k = t(0.975, ν) with ν by Welch–Satterthwaite. '
+      + 'Found by bracketing root finding from 1/1000× to 1000× of the current value and answered in the parameter’s unit; 422 with the reason when there is no solution there, '
+      + 'when the target has no model, or when the parameter is text or not in the model.',
+    access: 'session-or-rig',
+    params: buildAnd(targetKey),
+    body: SolveBody,
+    bodyName: 'Solve',
+    ok: { 200: { description: 'OK', schema: SolveOut } },
+    errors: [400, 401, 404, 422],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/targets/{key}/plan',
+    tag: 'Targets',
+    summary: 'How many samples tell Met from Short on a revision, from the pooled mean, spread and resolution',
+    description: 'The smallest n ≥ 2 for which t(0.975, ν(n))·√(sd²/n + u_B²) < |mean − threshold| (the nearer edge of a between band), ν by Welch–Satterthwaite; '
+      + '`samplesNeeded` is null with the reason when there is no scatter yet, when the resolution alone can’t decide it, or past 10,000.',
+    access: 'session-or-rig',
+    params: buildAnd(targetKey),
+    query: PlanQuery,
+    ok: { 200: { description: 'OK', schema: PlanOut } },
+    errors: [400, 401, 404],
+  },
+  {
     method: 'post',
     path: '/api/v1/builds/{build}/targets/order',
     tag: 'Targets',
@@ -423,7 +469,7 @@ export const apiRoutes: ApiRoute[] = [
     method: 'get',
     path: '/api/v1/builds/{build}/revisions/{label}',
     tag: 'Revisions and readings',
-    summary: 'One revision: every target’s statistics and readings on it, what it moved against its parent, and the fixes that landed in it',
+    summary: 'One revision: its effective design parameters (own and inherited), every target’s statistics and readings on it, what it moved against its parent, and the fixes that landed in it',
     access: 'session-or-rig',
     params: buildAnd(revisionLabel),
     ok: { 200: { description: 'OK', schema: RevisionDetailOut } },
@@ -434,6 +480,7 @@ export const apiRoutes: ApiRoute[] = [
     path: '/api/v1/builds/{build}/revisions/{label}',
     tag: 'Revisions and readings',
     summary: 'Edit a revision’s summary, changes, date and design parameters (Engineer or Owner)',
+    description: '`parameters` replaces the revision’s own parameters (inherited ones stay inherited); the rules are those of creation. A frozen revision is a 409.',
     access: 'session-or-rig',
     params: buildAnd(revisionLabel),
     body: RevisionPatch,

@@ -1,4 +1,5 @@
 import type { CantEvaluate, ComparedTarget, CompareSide, Comparison, FixLanded, HistoryEntry, Mover, ParameterDiff, RevisionView, TargetView } from '../../../shared/types/api'
+import { effectiveParameters, type EffectiveParameter } from '../../../shared/utils/design'
 import { compareCells, rankMovements } from '../../../shared/utils/movers'
 import { StatsOverflowError } from '../../../shared/utils/readingStats'
 import { findRevision, listRevisions } from './revisions'
@@ -89,17 +90,33 @@ export function compareTarget(t: TargetRow, series: TargetSeries, a: string, b: 
   return { target: view, a: side(ha), b: side(hb), delta: m.delta, p: m.p, movement: m.movement, real: m.real, reason: m.reason, note: null }
 }
 
-function parameterDiffs(a: RevisionView, b: RevisionView): ParameterDiff[] {
-  const names = [...new Set([...a.parameters.map(p => p.name), ...b.parameters.map(p => p.name)])]
-  return names.map((name) => {
-    const pa = a.parameters.find(p => p.name === name)
-    const pb = b.parameters.find(p => p.name === name)
-    const shown = (p: typeof pa) => (p ? { value: p.value, unit: p.unit ?? null } : null)
+/** A revision's effective design parameters, from the build's revisions (own parameters and parents). */
+function effectiveOf(revisions: readonly RevisionView[], label: string): EffectiveParameter[] {
+  const byLabel = new Map(revisions.map(r => [r.label, r]))
+  const chain: RevisionView['parameters'][] = []
+  const seen = new Set<string>()
+  for (let r = byLabel.get(label); r && !seen.has(r.label); r = r.parent ? byLabel.get(r.parent) : undefined) {
+    seen.add(r.label)
+    chain.unshift(r.parameters)
+  }
+  return effectiveParameters(chain)
+}
+
+/** The two revisions' effective parameters side by side, by key (A's order, then B's new ones). */
+function parameterDiffs(revisions: readonly RevisionView[], a: RevisionView, b: RevisionView): ParameterDiff[] {
+  const pa = effectiveOf(revisions, a.label)
+  const pb = effectiveOf(revisions, b.label)
+  const keys = [...new Set([...pa.map(p => p.key), ...pb.map(p => p.key)])]
+  const shown = (p: EffectiveParameter | undefined) => (p ? { value: p.value, unit: p.unit ?? null, tolerance: p.tolerance ?? null, inherited: p.inherited } : null)
+  return keys.map((key) => {
+    const x = pa.find(p => p.key === key)
+    const y = pb.find(p => p.key === key)
     return {
-      name,
-      a: shown(pa),
-      b: shown(pb),
-      differs: !pa || !pb || pa.value !== pb.value || (pa.unit ?? null) !== (pb.unit ?? null),
+      key,
+      name: (y ?? x)!.name,
+      a: shown(x),
+      b: shown(y),
+      differs: !x || !y || x.value !== y.value || (x.unit ?? null) !== (y.unit ?? null) || (x.tolerance ?? null) !== (y.tolerance ?? null),
     }
   })
 }
@@ -118,7 +135,7 @@ export function comparison(build: { id: string, slug: string, name: string }, st
     a,
     b,
     targets: ranked ? rankMovements(targets, relativeSize) : targets,
-    parameters: parameterDiffs(a, b),
+    parameters: parameterDiffs(state.revisions, a, b),
   }
 }
 

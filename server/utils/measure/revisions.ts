@@ -2,11 +2,11 @@ import { createError } from 'h3'
 import type { Knex } from 'knex'
 import type { z } from 'zod'
 import type { RevisionBrief, RevisionView } from '../../../shared/types/api'
-import type { ParameterField, RevisionBody, RevisionPatch } from '../../../shared/utils/revisionSchemas'
-import { parseUnit } from '../../../shared/utils/units'
+import type { RevisionBody, RevisionPatch } from '../../../shared/utils/revisionSchemas'
 import type { RevisionRow } from '../../db/tables'
 import type { Db } from '../db'
 import { recordEvent } from '../notify/events'
+import { parametersToStore } from './design'
 
 // Revisions of a build. Plain Knex with the connection passed in (the seed uses it too).
 // A frozen (signed-off) revision and its readings are read-only until an Owner reopens it.
@@ -31,20 +31,6 @@ export function assertOpen(rev: RevisionRow, doing = 'change its readings') {
   if (rev.frozen_at) {
     throw createError({ statusCode: 409, message: `Revision ${rev.label} is frozen (signed off); an Owner must reopen it to ${doing}` })
   }
-}
-
-/** A parameter's unit in its canonical spelling when Ratchet knows it, otherwise as typed. */
-function normalizeParameters(params: z.output<typeof ParameterField>[] | undefined) {
-  return (params ?? []).map((p) => {
-    let unit = p.unit ?? null
-    if (unit) {
-      try {
-        unit = parseUnit(unit).unit
-      }
-      catch { /* a unit Ratchet doesn't convert (e.g. "teeth") is kept as typed */ }
-    }
-    return { name: p.name, value: p.value, unit }
-  })
 }
 
 function dateOnly(d: string | Date | null): string | null {
@@ -77,6 +63,7 @@ export async function insertRevision(trx: Knex.Transaction, buildId: string, bod
   if (body.parent) parent = await findRevision(trx, buildId, body.parent).catch(() => { throw notFound(body.parent!, 'parent') })
   else if (body.parent === undefined) parent = (await trx('revisions').where({ build_id: buildId }).orderBy('seq', 'desc').first()) ?? null
   const max: number | null = (await trx('revisions').where({ build_id: buildId }).max({ max: 'seq' }).first())?.max ?? null
+  const parameters = await parametersToStore(trx, buildId, parent?.id ?? null, body.parameters)
   const [row] = await trx('revisions').insert({
     build_id: buildId,
     label: body.label,
@@ -85,7 +72,7 @@ export async function insertRevision(trx: Knex.Transaction, buildId: string, bod
     built_on: body.builtOn ?? null,
     summary: body.summary ?? '',
     changes: JSON.stringify(body.changes ?? []),
-    parameters: JSON.stringify(normalizeParameters(body.parameters)),
+    parameters: JSON.stringify(parameters),
     created_by: createdBy,
   }).returning('*')
   return { ...revisionBrief(row!, parent?.label ?? null), changes: row!.changes, parameters: row!.parameters, frozenBy: null, readings: 0, targetsTested: 0, createdAt: new Date(row!.created_at).toISOString() }
@@ -97,7 +84,7 @@ export async function updateRevision(trx: Knex.Transaction, rev: RevisionRow, pa
   const changes: Record<string, unknown> = { updated_at: trx.fn.now() }
   if (patch.summary !== undefined) changes.summary = patch.summary
   if (patch.changes !== undefined) changes.changes = JSON.stringify(patch.changes)
-  if (patch.parameters !== undefined) changes.parameters = JSON.stringify(normalizeParameters(patch.parameters))
+  if (patch.parameters !== undefined) changes.parameters = JSON.stringify(await parametersToStore(trx, rev.build_id, rev.id, patch.parameters))
   if (patch.builtOn !== undefined) changes.built_on = patch.builtOn
   await trx('revisions').where({ id: rev.id }).update(changes)
 }

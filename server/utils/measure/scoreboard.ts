@@ -3,6 +3,10 @@ import type { Role } from '../../../shared/utils/roles'
 import { marginOf, type TargetStatus } from '../../../shared/utils/conformance'
 import { forecastOfHistory } from '../../../shared/utils/forecast'
 import { comparison, fixesLanded, loadBuildState, moversOf } from './compare'
+import { designCautions } from '../../../shared/utils/designCautions'
+import { DesignError, modelKeys, predict } from '../../../shared/utils/design'
+import { FormulaError } from '../../../shared/utils/derived'
+import { effectiveParametersOf, revisionsWithParameters } from './design'
 import { formulaKeys } from './formulas'
 import { seriesOf, type TargetSeries } from './history'
 import type { CellRow, ReadingRow, RevisionRow, TargetRow } from '../../db/tables'
@@ -75,10 +79,11 @@ export async function buildScoreboard(db: Db, build: BuildRef): Promise<Scoreboa
  */
 export async function buildTargetDetail(db: Db, build: BuildRef, role: Role, key: string): Promise<TargetDetail> {
   const t = await findTarget(db, build.id, key)
-  const [state, readings, fixes] = await Promise.all([
+  const [state, readings, fixes, withParameters] = await Promise.all([
     loadBuildState(db, build.id),
     readingsQuery(db).where('rd.target_id', t.id) as Promise<(ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null })[]>,
     fixesLanded(db, build.id),
+    revisionsWithParameters(db, build.id),
   ])
   const series = state.series.get(t.id)!
   const labels = state.revisions.map(r => r.label)
@@ -100,23 +105,48 @@ export async function buildTargetDetail(db: Db, build: BuildRef, role: Role, key
     forecast,
     movers: moversOf(series, state.revisions, fixes),
     inputs,
+    cautions: cautionsOf(t, view, latest, withParameters.at(-1) ?? null),
   }
 }
 
+/** The target's cautions with numbers, from the latest revision's effective parameters. */
+function cautionsOf(t: TargetRow, view: TargetDetail['target'], latest: HistoryEntry | null, rev: Awaited<ReturnType<typeof revisionsWithParameters>>[number] | null) {
+  let keys: string[] = []
+  let predicted: { value: number, revision: string } | null = null
+  if (t.model !== null && rev) {
+    try {
+      keys = modelKeys(t.model)
+      predicted = { value: predict(t.model, rev.effective, t.unit).value, revision: rev.label }
+    }
+    catch (e) {
+      if (!(e instanceof DesignError || e instanceof FormulaError)) throw e
+    }
+  }
+  return designCautions({
+    target: { ...view, model: t.model, modelKeys: keys },
+    parameters: rev?.effective ?? [],
+    measured: latest ? { value: latest.mean, revision: latest.revision } : null,
+    predicted,
+  })
+}
+
 /**
- * GET /api/builds/:build/revisions/:label: the revision and its readings grouped by target,
+ * GET /api/builds/:build/revisions/:label: the revision with its effective design parameters (its own
+ * and those it inherits), its readings grouped by target,
  * derived values, what it moved against its parent, and the fixes that landed in it.
  */
 export async function buildRevisionDetail(db: Db, build: BuildRef, role: Role, rev: RevisionRow): Promise<RevisionDetail> {
-  const [state, readings, fixes] = await Promise.all([
+  const [state, readings, fixes, parameters] = await Promise.all([
     loadBuildState(db, build.id),
     readingsQuery(db).where('rd.revision_id', rev.id) as Promise<(ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null })[]>,
     fixesLanded(db, build.id, rev.id),
+    effectiveParametersOf(db, rev),
   ])
   const view = state.revisions.find(r => r.id === rev.id)!
   const parent = view.parent ? state.revisions.find(r => r.label === view.parent) ?? null : null
   return {
     ...view,
+    parameters,
     build: { id: build.id, slug: build.slug, name: build.name },
     role,
     targets: state.targets.filter(t => !t.archived_at).map((t) => {

@@ -9,6 +9,7 @@ import { UnitError, quantityLabel, assertSameQuantity, diffFromSI, diffToSI, fro
 import type { TargetRow } from '../../db/tables'
 import type { Actor } from '../audit'
 import type { Db } from '../db'
+import { checkTargetModel } from './design'
 import { checkTargetFormula } from './formulas'
 import { redecideTarget, type CellTarget } from './statsCache'
 import { trackTargetEvents } from './targetEvents'
@@ -72,6 +73,7 @@ export function targetView(t: TargetRow): TargetView {
     hazard,
     derived: t.formula !== null,
     formula: t.formula,
+    model: t.model,
   }
 }
 
@@ -106,6 +108,7 @@ export async function insertTarget(trx: Knex.Transaction, actor: Pick<Actor, 'us
   }
   finiteOr400(si)
   const formula = body.formula ? await checkTargetFormula(trx, buildId, { key: body.key, unit: unit.unit }, body.formula) : null
+  const model = body.model ? await checkTargetModel(trx, buildId, unit.unit, body.model) : null
   try {
     const [row] = await trx('targets').insert({
       build_id: buildId,
@@ -120,6 +123,7 @@ export async function insertTarget(trx: Knex.Transaction, actor: Pick<Actor, 'us
       noise_band: si.noiseBand,
       notes: body.notes ?? '',
       formula,
+      model,
       position: (max ?? -1) + 1,
       created_by: actor.userId,
     }).returning('*')
@@ -188,6 +192,9 @@ export async function updateTarget(trx: Knex.Transaction, input: { target: Targe
     else {
       changes.formula = null
     }
+  }
+  if (patch.model !== undefined && patch.model !== t.model) {
+    changes.model = patch.model === null ? null : await checkTargetModel(trx, t.build_id, unit.unit, patch.model)
   }
   if (patch.archived === true && !t.archived_at) changes.archived_at = trx.fn.now()
   if (patch.archived === false && t.archived_at) {
