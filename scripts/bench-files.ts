@@ -217,3 +217,58 @@ export const filesSection = {
       + `(${Math.round(imported.rows / seconds).toLocaleString('en')} rows/s); its preview ${preview.toFixed(2)} s`)
   },
 }
+
+/** Downloads a build's archive, hashing it on the way. */
+function exportArchive(ctx: Ctx, build: string): Promise<{ bytes: number, seconds: number, status: number }> {
+  const started = performance.now()
+  return new Promise((resolve, reject) => {
+    request(`${BASE_URL}/api/v1/builds/${build}/export`, { headers: { cookie: ctx.cookie } }, (res) => {
+      let bytes = 0
+      res.on('data', (chunk: Buffer) => {
+        bytes += chunk.length
+      })
+      res.on('end', () => resolve({ bytes, seconds: (performance.now() - started) / 1000, status: res.statusCode ?? 0 }))
+      res.on('error', reject)
+    }).on('error', reject).end()
+  })
+}
+
+// The `archive` section: the export of a build holding 200 MB of evidence (one file of random
+// bytes, which gzip can't shrink), its time against a plain copy, and the server's RSS meanwhile.
+export const archiveSection = {
+  name: 'archive',
+  async run(ctx: Ctx) {
+    const pid = listeningPid(Number(new URL(BASE_URL).port)) ?? Number(process.env.RATCHET_BENCH_APP_PID)
+    if (!pid) throw new Error('the server’s process was not found (set RATCHET_BENCH_APP_PID)')
+    const build = await call(ctx, 'POST', '/api/v1/builds', { team: ctx.teamSlug, name: `Bench archive ${randomBytes(3).toString('hex')}` }) as { slug: string }
+    const key = `bench_${randomBytes(3).toString('hex')}`
+    await call(ctx, 'POST', `/api/v1/builds/${build.slug}/targets`, { key, name: 'Bench torque', unit: 'N·m', comparator: 'atLeast', threshold: 40 })
+    await call(ctx, 'POST', `/api/v1/builds/${build.slug}/revisions`, { label: 'A1' })
+    await call(ctx, 'POST', `/api/v1/builds/${build.slug}/readings`, { revision: 'A1', target: key, values: Array.from({ length: 1000 }, (_, i) => 41 + Math.sin(i)), unit: 'N·m' })
+    await writeSource()
+    try {
+      await upload(ctx, build.slug)
+      const copies: number[] = []
+      const times: number[] = []
+      const before = rssOf(pid)
+      let peak = before
+      let bytes = 0
+      for (let run = 0; run < 3; run++) {
+        copies.push((await plainCopy()).streamed)
+        const watch = watchRss(pid)
+        const got = await exportArchive(ctx, build.slug)
+        peak = Math.max(peak, watch.stop())
+        if (got.status !== 200) throw new Error(`export: ${got.status}`)
+        times.push(got.seconds)
+        bytes = got.bytes
+      }
+      const [t, c] = [median(times), median(copies)]
+      console.log(`  export of a build with 200 MB of evidence, median of 3: ${(bytes / MB).toFixed(1)} MB in ${t.toFixed(2)} s (${(bytes / MB / t).toFixed(0)} MB/s, gzip level 1 included); `
+        + `a plain streamed copy of the evidence ${c.toFixed(2)} s (${(t / c).toFixed(2)}×)`)
+      console.log(`  server RSS: ${(before / MB).toFixed(0)} MB before, peak ${(peak / MB).toFixed(0)} MB exporting (+${((peak - before) / MB).toFixed(1)}) (goal: growth < 100 MB)`)
+    }
+    finally {
+      await rm(SOURCE, { force: true })
+    }
+  },
+}

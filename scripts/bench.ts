@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto'
 import { performance } from 'node:perf_hooks'
 import knex, { type Knex } from 'knex'
 import { knexConfig } from '../knexfile'
-import { filesSection } from './bench-files'
+import { archiveSection, filesSection } from './bench-files'
 import type { CellRow } from '../server/db/tables'
 import { cellRowOf, statsColumns, type CellTarget } from '../server/utils/measure/statsCache'
 import { cellFromStats, decideCells, poolCell } from '../shared/utils/cellStats'
@@ -438,7 +438,7 @@ const boardSection: Section = {
 
 // ---------------------------------------------------------------------------------------
 
-const SECTIONS: Section[] = [scoreboardSection, filesSection, boardSection]
+const SECTIONS: Section[] = [scoreboardSection, filesSection, boardSection, archiveSection]
 
 const wanted = process.argv.slice(2)
 const db = knex(knexConfig())

@@ -7,7 +7,7 @@ import type { H3Event } from 'h3'
 //    A request with neither header (a script, a rig with its token, curl) goes on: browsers send
 //    Origin on every cross-site state-changing request.
 // 2. Content types: a body on a JSON route must be application/json (415 otherwise); the upload
-//    route takes multipart/form-data, the one-click unsubscribe (RFC 8058) also a form.
+//    routes (evidence, a build archive) take multipart/form-data, the one-click unsubscribe (RFC 8058) also a form.
 // 3. Body size and time: a JSON body is read here, counting bytes as they arrive, and refused
 //    with 413 past JSON_BODY_LIMIT (a declared Content-Length past it is refused before a byte is
 //    read), and with 408 when it has not arrived in full within JSON_BODY_TIMEOUT_MS. The bytes
@@ -25,7 +25,8 @@ export const UPLOAD_IDLE_TIMEOUT_MS = 25_000
 const MULTIPART_SLACK = 64 * 1024
 
 const CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE'])
-const UPLOAD_ROUTE = /^\/api\/v1\/builds\/[^/]+\/files\/?$/
+// the evidence upload, and a build archive's import
+const UPLOAD_ROUTE = /^\/api\/v1\/(?:builds\/[^/]+\/files|teams\/[^/]+\/import)\/?$/
 const UNSUBSCRIBE_ROUTE = /^\/api\/unsubscribe\/?$/
 const RawBody = Symbol.for('h3RawBody')
 

@@ -13,3 +13,8 @@ export const BuildPatch = z.object({
   summary: z.string().trim().max(2000, 'A summary has at most 2,000 characters').optional(),
   archived: z.boolean({ error: 'archived is true or false' }).optional(),
 })
+
+/** The text fields of a build archive's import (multipart, sent before the file). */
+export const ArchiveImportFields = z.object({
+  name: nameField.optional().meta({ description: 'the new build’s name; the archived build’s name when absent' }),
+})

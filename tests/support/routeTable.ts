@@ -82,6 +82,15 @@ function measuredBuild(w: World) {
   return measured.get(w)!
 }
 
+/** An archive of the world's build (exported by its Owner), as an import's multipart form. */
+async function archiveForm(w: World): Promise<FormData> {
+  const res = await fetch(`${w.owner.client.base}/api/v1/builds/${w.build.slug}/export`, { headers: { cookie: w.owner.client.cookie } })
+  if (res.status !== 200) throw new Error(`matrix archive: ${res.status}`)
+  const form = new FormData()
+  form.append('file', new Blob([await res.arrayBuffer()], { type: 'application/gzip' }), 'matrix.tar.gz')
+  return form
+}
+
 /** A new revision of the world's build, frozen by the Owner when asked. */
 async function freshRevision(w: World, frozen = false) {
   const label = `F${randomBytes(4).toString('hex')}`
@@ -295,4 +304,7 @@ export const routes: RouteCase[] = [
   { method: 'POST', path: '/api/v1/builds/:build/import', expect: e(401, 404, 404, 403, 201, 201), prepare: async w => ({ params: base(w), body: await importBody(w) }) },
   { method: 'GET', path: '/api/v1/builds/:build/export/readings.csv', expect: e(401, 404, 404, 200, 200, 200) },
   { method: 'GET', path: '/api/v1/builds/:build/export/scoreboard.csv', expect: e(401, 404, 404, 200, 200, 200) },
+  // build archives out and in
+  { method: 'GET', path: '/api/v1/builds/:build/export', expect: e(401, 403, 404, 403, 200, 200) },
+  { method: 'POST', path: '/api/v1/teams/:team/import', expect: e(401, 403, 404, 403, 201, 201), prepare: async w => ({ params: base(w), body: await archiveForm(w) }) },
 ]

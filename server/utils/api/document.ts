@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import {
   ApiError, BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
-  FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixLandedOut, FixOut, ForecastOut, HistoryEntryOut,
+  ArchiveImportedOut, FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixLandedOut, FixOut, ForecastOut, HistoryEntryOut,
   MoveResultOut, OpenFindingsOut, PlanOut, ReadingCreatedOut, ReadingDetailOut, RevisionDetailOut, RevisionOut, ScoreboardOut,
   SignedInOut, SolveOut, SubscriptionOut, TargetDesignOut, TargetDetailOut, TargetOrderOut, TargetOut, TeamCreatedOut, TeamOut,
 } from './responses'
@@ -57,6 +57,7 @@ const ANSWERS: Record<string, z.ZodType> = {
   TargetDesign: TargetDesignOut,
   Solved: SolveOut,
   SamplePlan: PlanOut,
+  ArchiveImported: ArchiveImportedOut,
 }
 
 const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` })

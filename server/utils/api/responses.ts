@@ -405,6 +405,13 @@ export const FileCreatedOut = z.object({
   contentType: described(z.string(), 'sniffed from the first bytes'),
 })
 
+export const ArchiveImportedOut = z.object({
+  build: z.object({
+    id: described(z.string(), 'the new build’s id'),
+    slug: described(z.string(), 'the new build’s slug: the archived one, made unique in this installation'),
+  }),
+})
+
 export const FileListOut = z.object({
   items: z.array(FileCreatedOut.extend({
     kind: z.enum(FILE_KINDS as [typeof FILE_KINDS[number], ...typeof FILE_KINDS[number][]]),

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { LoginBody, TeamBody } from '../../../shared/utils/accountSchemas'
-import { BuildBody, BuildPatch } from '../../../shared/utils/buildSchemas'
+import { ArchiveImportFields, BuildBody, BuildPatch } from '../../../shared/utils/buildSchemas'
 import { EventListQuery, SubscriptionBody } from '../../../shared/utils/digestSchemas'
 import { CsvImportBody, CsvPreviewQuery, FileListQuery, UploadFields } from '../../../shared/utils/fileSchemas'
 import {
@@ -10,7 +10,7 @@ import { ReadingBody } from '../../../shared/utils/readingSchemas'
 import { CompareQuery, PlanQuery, RevisionBody, RevisionPatch, SolveBody, UnfreezeBody } from '../../../shared/utils/revisionSchemas'
 import { TargetBody, TargetListQuery, TargetOrderBody, TargetPatch } from '../../../shared/utils/targetSchemas'
 import {
-  BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
+  ArchiveImportedOut, BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
   FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixOut, MoveResultOut, OpenFindingsOut, ReadingCreatedOut,
   PlanOut, RevisionDetailOut, RevisionOut, ScoreboardOut, SignedInOut, SolveOut, SubscriptionOut, TargetDesignOut, TargetDetailOut,
   TargetOrderOut, TargetOut, TeamCreatedOut, TeamOut,
@@ -420,6 +420,39 @@ export const apiRoutes: ApiRoute[] = [
     params: build,
     ok: { 200: { description: 'A CSV file (UTF-8, as an attachment)', raw: 'text/csv' } },
     errors: [401, 404],
+  },
+  {
+    method: 'get',
+    path: '/api/v1/builds/{build}/export',
+    tag: 'Builds',
+    summary: 'The whole build as one archive (tar.gz): its rows, the readings and scoreboard CSVs and every evidence file (Engineer or Owner)' + noRig,
+    description: 'The archive’s layout is in docs/archive.md: manifest.json (format, version, counts, every entry’s size and sha256) first, '
+      + 'then one JSON per table, readings.csv, scoreboard.csv and files/{id}. People are named by name and e-mail. The archive is streamed.',
+    access: 'session',
+    params: build,
+    ok: { 200: { description: 'A tar.gz file (as an attachment), streamed', raw: 'application/gzip' } },
+    errors: [401, 403, 404],
+  },
+  {
+    method: 'post',
+    path: '/api/v1/teams/{team}/import',
+    tag: 'Builds',
+    summary: 'Import a build archive as a new build of the team: all or nothing (Engineer or Owner of the team)' + noRig,
+    description: 'Every id is made anew and every reference rewritten; people are matched to accounts by e-mail; rig tokens are not carried. '
+      + 'Every entry is checked against the manifest (size, sha256) as it streams in. A corrupt, truncated, foreign or newer archive, an entry named outside the archive, '
+      + 'a damaged file, a decompression bomb or rows past the product’s limits are refused with the problem named, and nothing is kept.',
+    access: 'session',
+    params: { team: 'The team’s id or slug' },
+    form: { fields: ArchiveImportFields, file: FilePart },
+    bodyName: 'ArchiveImport',
+    ok: { 201: { description: 'Created', schema: ArchiveImportedOut } },
+    errors: [
+      [400, 'Not a readable tar.gz (truncated or corrupt), an entry named with ".." or an absolute path, or no file'],
+      401, 403, 404,
+      [413, 'Larger than the upload limit, expanding past its limits (a decompression bomb), or over the team’s storage quota'],
+      [422, 'Not a Ratchet build archive, a newer format version, a file that does not match its sha256, or rows that break the product’s rules'],
+      [503, 'The file store refused or could not be reached; nothing is kept'],
+    ],
   },
   // ---- revisions and readings ----
   {

@@ -19,8 +19,8 @@ export interface Received { filename: string, bytes: number, sha256: string, hea
  * "file" (only one is allowed) and gets the text fields sent before it. On any failure the rest
  * of the body is read and dropped, so the client gets the answer.
  */
-export function readMultipart(req: IncomingMessage, headers: IncomingHttpHeaders, onFile: (stream: Readable, filename: string, fieldsBefore: Record<string, string>, signal: AbortSignal) => Promise<Received>) {
-  return new Promise<{ fields: Record<string, string>, file: Received | null }>((resolve, reject) => {
+export function readMultipart<T = Received>(req: IncomingMessage, headers: IncomingHttpHeaders, onFile: (stream: Readable, filename: string, fieldsBefore: Record<string, string>, signal: AbortSignal) => Promise<T>) {
+  return new Promise<{ fields: Record<string, string>, file: T | null }>((resolve, reject) => {
     let parser: busboy.Busboy
     try {
       parser = busboy({ headers, defParamCharset: 'utf8', highWaterMark: CHUNK, fileHwm: CHUNK, limits: { files: 1, fields: 8, parts: 10, fieldSize: 1024, headerPairs: 20 } })
@@ -30,7 +30,7 @@ export function readMultipart(req: IncomingMessage, headers: IncomingHttpHeaders
       return
     }
     const fields: Record<string, string> = {}
-    let pending: Promise<Received> | null = null
+    let pending: Promise<T> | null = null
     let current: Readable | null = null
     let settled = false
     // tells `onFile` to stop writing (it may still be checking the fields when the body fails)
