@@ -4,25 +4,13 @@
 // files the dump knows (each checked against its recorded sha256). A file whose bytes are gone
 // (deleted while the copy ran, or lost before) is named in the manifest's files.missing and the
 // output. The manifest is written last. Layout: scripts/backupFormat.ts.
-import { spawn } from 'node:child_process'
 import { mkdir, readdir, writeFile } from 'node:fs/promises'
 import { join, resolve } from 'node:path'
 import knex from 'knex'
 import { knexConfig } from '../knexfile'
-import { FORMAT, STORAGE_KEY, VERSION, copyHashed, pgConnection, sha256Of, type BackupManifest } from './backupFormat'
+import { FORMAT, STORAGE_KEY, VERSION, copyHashed, failWith, pgConnection, run, sha256Of, type BackupManifest } from './backupFormat'
 
-function fail(message: string, code = 1): never {
-  console.error(`backup: ${message}`)
-  process.exit(code)
-}
-
-function run(cmd: string, args: string[], env: NodeJS.ProcessEnv): Promise<void> {
-  return new Promise((done, failed) => {
-    const child = spawn(cmd, args, { env, stdio: ['ignore', 'inherit', 'inherit'] })
-    child.on('error', failed)
-    child.on('exit', code => (code === 0 ? done() : failed(new Error(`${cmd} exited with ${code}`))))
-  })
-}
+const fail: (message: string, code?: number) => never = failWith('backup')
 
 const given = process.argv[2]
 if (!given || given.startsWith('-')) fail('usage: npm run backup -- DIR (a new or empty folder)', 2)

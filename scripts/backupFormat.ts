@@ -2,6 +2,7 @@
 //   DIR/database.dump   pg_dump's custom format
 //   DIR/files/ab/<uuid> the file store's bytes, under their storage keys
 //   DIR/manifest.json   written last: a folder without it is an unfinished backup
+import { spawn } from 'node:child_process'
 import { createHash } from 'node:crypto'
 import { createReadStream, createWriteStream } from 'node:fs'
 import { mkdir } from 'node:fs/promises'
@@ -58,4 +59,21 @@ export function pgConnection(url: string): { args: string[], env: NodeJS.Process
     args: ['-h', u.hostname, '-p', u.port || '5432', '-U', decodeURIComponent(u.username), '-d', decodeURIComponent(u.pathname.slice(1))],
     env: { ...process.env, PGPASSWORD: decodeURIComponent(u.password), PGCONNECT_TIMEOUT: '10' },
   }
+}
+
+/** Prints "<tool>: message" and exits with `code`. */
+export function failWith(tool: string) {
+  return (message: string, code = 1): never => {
+    console.error(`${tool}: ${message}`)
+    process.exit(code)
+  }
+}
+
+/** Runs a command (pg_dump, pg_restore) with its output passed through; rejects on a non-zero exit. */
+export function run(cmd: string, args: string[], env: NodeJS.ProcessEnv): Promise<void> {
+  return new Promise((done, failed) => {
+    const child = spawn(cmd, args, { env, stdio: ['ignore', 'inherit', 'inherit'] })
+    child.on('error', failed)
+    child.on('exit', code => (code === 0 ? done() : failed(new Error(`${cmd} exited with ${code}`))))
+  })
 }

@@ -2,25 +2,13 @@
 // (DATABASE_URL) and an empty file store (NUXT_FILES_DIR). Every checksum is verified before
 // anything is written; a database or store that holds anything is refused unless --force, which
 // empties them first. pg_restore runs in one transaction: a failure leaves the database empty.
-import { spawn } from 'node:child_process'
 import { mkdir, readFile, readdir, rm } from 'node:fs/promises'
 import { join, resolve } from 'node:path'
 import knex from 'knex'
 import { knexConfig } from '../knexfile'
-import { FORMAT, STORAGE_KEY, VERSION, copyHashed, pgConnection, sha256Of, type BackupManifest } from './backupFormat'
+import { FORMAT, STORAGE_KEY, VERSION, copyHashed, failWith, pgConnection, run, sha256Of, type BackupManifest } from './backupFormat'
 
-function fail(message: string, code = 1): never {
-  console.error(`restore: ${message}`)
-  process.exit(code)
-}
-
-function run(cmd: string, args: string[], env: NodeJS.ProcessEnv): Promise<void> {
-  return new Promise((done, failed) => {
-    const child = spawn(cmd, args, { env, stdio: ['ignore', 'inherit', 'inherit'] })
-    child.on('error', failed)
-    child.on('exit', code => (code === 0 ? done() : failed(new Error(`${cmd} exited with ${code}`))))
-  })
-}
+const fail: (message: string, code?: number) => never = failWith('restore')
 
 const args = process.argv.slice(2)
 const force = args.includes('--force')
