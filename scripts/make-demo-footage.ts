@@ -1,12 +1,12 @@
-// Makes the demo's test footage, seeds/assets/trailhopper-dyno-r5.webm (invented: a drawn roller
-// dyno run), once; the seed ships the result. Chromium's MediaRecorder records a canvas as VP8
-// WebM, rewritten seekable (scripts/lib/canvasFootage.ts).
-//   npx tsx scripts/make-demo-footage.ts
-import { writeFileSync } from 'node:fs'
+// Makes the demo's footage in seeds/assets (invented, drawn): Trailhopper's roller dyno run and
+// Arcwheel's ball crossing the frame at 240 fps (scripts/lib/demoClips.ts). The seed ships the
+// results; a clip already there is left as it is unless --force. Chromium's MediaRecorder records
+// a canvas as VP8 WebM, rewritten seekable (scripts/lib/canvasFootage.ts).
+//   npx tsx scripts/make-demo-footage.ts [--force]
+import { existsSync, writeFileSync } from 'node:fs'
 import { chromium } from 'playwright-core'
 import { makeSeekable, recordCanvas } from './lib/canvasFootage'
-
-const OUT = new URL('../seeds/assets/trailhopper-dyno-r5.webm', import.meta.url)
+import { ARCWHEEL_CLIP, ARCWHEEL_DRAW } from './lib/demoClips'
 
 // the roller and the wheel on it, spokes turning with the speed, the speed written beside
 const DRAW = `(g, k, t) => {
@@ -45,11 +45,22 @@ const browser = await chromium.launch({
   executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
   args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
 })
+const clips = [
+  { file: 'trailhopper-dyno-r5.webm', make: async () => makeSeekable(await recordCanvas(await browser.newPage(), { width: 320, height: 180, fps: 24, frames: Math.ceil(4.2 * 24), bitsPerSecond: 140_000, draw: DRAW })) },
+  {
+    file: ARCWHEEL_CLIP.file,
+    // pushed a frame every 80 ms, so no frame is dropped, then put on the 1/240 s grid the camera's file would have
+    make: async () => makeSeekable(await recordCanvas(await browser.newPage(), { width: ARCWHEEL_CLIP.width, height: ARCWHEEL_CLIP.height, fps: ARCWHEEL_CLIP.fps, frames: ARCWHEEL_CLIP.frames, bitsPerSecond: 600_000, draw: ARCWHEEL_DRAW, paceMs: 80 }), { frameSeconds: 1 / ARCWHEEL_CLIP.fps, stateRate: true }),
+  },
+]
 try {
-  const raw = await recordCanvas(await browser.newPage(), { width: 320, height: 180, fps: 24, frames: Math.ceil(4.2 * 24), bitsPerSecond: 140_000, draw: DRAW })
-  const fixed = makeSeekable(raw)
-  writeFileSync(OUT, fixed)
-  console.log(`footage: ${raw.length} bytes recorded, ${fixed.length} bytes written to ${OUT.pathname.split('/').slice(-3).join('/')}`)
+  for (const clip of clips) {
+    const out = new URL(`../seeds/assets/${clip.file}`, import.meta.url)
+    if (existsSync(out) && !process.argv.includes('--force')) continue
+    const bytes = await clip.make()
+    writeFileSync(out, bytes)
+    console.log(`footage: ${bytes.length} bytes written to seeds/assets/${clip.file}`)
+  }
 }
 finally {
   await browser.close()

@@ -2,13 +2,17 @@ import { readFileSync } from 'node:fs'
 import { deflateSync } from 'node:zlib'
 import type { Knex } from 'knex'
 import { storeBytes } from '../server/utils/files/uploads'
-import { createFileStore, filesConfigFromEnv } from '../server/utils/files/storage'
+import { createFileStore, filesConfigFromEnv, type FileStore } from '../server/utils/files/storage'
+import { insertReading } from '../server/utils/measure/readings'
+import { ARCWHEEL_CLIP, arcwheelTrack } from '../scripts/lib/demoClips'
 
 // Demo data only: evidence files on Trailhopper (02_demo-builds made its readings, 03 its
-// findings). The photos are drawn here, the CSV is the instrument log behind R5's case
-// temperature reading, and the footage is the one invented clip in seeds/assets (made by
-// scripts/make-demo-footage.ts). Stored through the same file store as uploads, under the
-// NUXT_FILES_* settings. Idempotent: a file whose name the build already has is skipped.
+// findings) and Arcwheel's measured clip. The photos are drawn here, the CSV is the instrument
+// log behind R5's case temperature reading, and the footage is the invented clips in seeds/assets
+// (made by scripts/make-demo-footage.ts). Arcwheel's clip carries the track reading that was
+// measured on it (scripts/lib/demoClips.ts has the marks). Stored through the same file store as
+// uploads, under the NUXT_FILES_* settings. Idempotent: a file whose name the build already has is
+// skipped, and so is a track reading the clip already has.
 
 // ---- a small PNG encoder (8-bit RGB, no filtering) ----
 
@@ -109,9 +113,14 @@ function caseTempCsv(values: number[]): Buffer {
 }
 
 export async function seed(knex: Knex): Promise<void> {
+  const store = createFileStore(filesConfigFromEnv())
+  await trailhopperFiles(knex, store)
+  await arcwheelClip(knex, store)
+}
+
+async function trailhopperFiles(knex: Knex, store: FileStore): Promise<void> {
   const build = await knex('builds').where({ slug: 'trailhopper' }).first('id')
   if (!build) return
-  const store = createFileStore(filesConfigFromEnv())
   const person = async (email: string) => (await knex('users').where({ email }).first('id'))?.id ?? null
   const reading = async (target: string, revision: string) => knex('readings as rd')
     .join('targets as t', 't.id', 'rd.target_id').join('revisions as rv', 'rv.id', 'rd.revision_id')
@@ -147,4 +156,36 @@ export async function seed(knex: Knex): Promise<void> {
       uploadedBy: f.by,
     }))
   }
+}
+
+/** Arcwheel R3's exit speed measured on high-speed footage: the clip, and the track reading marked on it. */
+async function arcwheelClip(knex: Knex, store: FileStore): Promise<void> {
+  const build = await knex('builds').where({ slug: 'arcwheel' }).first('id')
+  const revision = build && await knex('revisions').where({ build_id: build.id, label: 'R3' }).first('id', 'frozen_at')
+  const target = build && await knex('targets').where({ build_id: build.id, key: 'exit_speed' }).first('id')
+  if (!build || !revision || !target || revision.frozen_at) return
+  const engineer = (await knex('users').where({ email: 'engineer@demo.test' }).first('id'))?.id ?? null
+  await knex.transaction(async (trx) => {
+    const file = await trx('files').where({ build_id: build.id, name: ARCWHEEL_CLIP.file }).first('id', 'reading_id')
+      ?? { id: await storeBytes(trx, store, {
+        buildId: build.id,
+        name: ARCWHEEL_CLIP.file,
+        bytes: readFileSync(new URL(`./assets/${ARCWHEEL_CLIP.file}`, import.meta.url)),
+        revisionId: revision.id,
+        readingId: null,
+        findingId: null,
+        uploadedBy: engineer,
+      }), reading_id: null }
+    if (file.reading_id) return
+    const track = arcwheelTrack()
+    await insertReading(trx, { userId: engineer, rigTokenId: null }, { buildId: build.id, body: {
+      revision: 'R3',
+      target: 'exit_speed',
+      track,
+      file: file.id,
+      method: `footage, ${ARCWHEEL_CLIP.fps} fps, ${track.points.length} frames`,
+      takenAt: '2026-05-04T15:30:00Z',
+      notes: 'Side-on clip of one ball against the 300 mm rule on the net frame; a check of the Doppler sensor.',
+    } })
+  })
 }

@@ -64,7 +64,7 @@ export async function recordCanvas(page: Page, f: CanvasFootage): Promise<Buffer
 
 // ---- EBML (Matroska/WebM) ----
 
-const ID = { Segment: 0x18538067, Info: 0x1549A966, TimecodeScale: 0x2AD7B1, Duration: 0x4489, Cluster: 0x1F43B675, Timecode: 0xE7, SimpleBlock: 0xA3, BlockGroup: 0xA0, Block: 0xA1, ReferenceBlock: 0xFB, Cues: 0x1C53BB6B, CuePoint: 0xBB, CueTime: 0xB3, CueTrackPositions: 0xB7, CueTrack: 0xF7, CueClusterPosition: 0xF1 }
+const ID = { Segment: 0x18538067, Info: 0x1549A966, TimecodeScale: 0x2AD7B1, Duration: 0x4489, Cluster: 0x1F43B675, Timecode: 0xE7, SimpleBlock: 0xA3, BlockGroup: 0xA0, Block: 0xA1, ReferenceBlock: 0xFB, Cues: 0x1C53BB6B, CuePoint: 0xBB, CueTime: 0xB3, CueTrackPositions: 0xB7, CueTrack: 0xF7, CueClusterPosition: 0xF1, Tracks: 0x1654AE6B, TrackEntry: 0xAE, TrackType: 0x83, DefaultDuration: 0x23E383 }
 
 interface El { id: number, start: number, dataStart: number, end: number }
 
@@ -140,9 +140,10 @@ const readUint = (buf: Buffer, el: El) => {
  * keyframe), which makes it seekable over range requests. With `frameSeconds`, every frame is also
  * retimed to exactly its index × frameSeconds: the recorder stamps frames with the time they were
  * captured, which wanders by a good part of a frame on a busy machine; footage whose frame k must be
- * found at time k/fps needs its frames on that grid.
+ * found at time k/fps needs its frames on that grid. With `stateRate` as well, the video track states
+ * that frame duration (DefaultDuration), as a camera's file would.
  */
-export function makeSeekable(raw: Buffer, opts: { frameSeconds?: number } = {}): Buffer {
+export function makeSeekable(raw: Buffer, opts: { frameSeconds?: number, stateRate?: boolean } = {}): Buffer {
   const top = children(raw, 0, raw.length)
   const header = top[0]!
   const segment = top.find(e => e.id === ID.Segment)!
@@ -198,7 +199,7 @@ export function makeSeekable(raw: Buffer, opts: { frameSeconds?: number } = {}):
   const infoKids = children(raw, info.dataStart, info.end).filter(e => e.id !== ID.Duration)
   const duration = (times.at(-1) ?? 0) + frame
   const newInfo = element(ID.Info, Buffer.concat([...infoKids.map(k => raw.subarray(k.start, k.end)), element(ID.Duration, float64(duration))]))
-  const kept = others.map(e => raw.subarray(e.start, e.end))
+  const kept = others.map(e => (e.id === ID.Tracks && opts.frameSeconds && opts.stateRate ? withFrameDuration(raw, e, opts.frameSeconds) : raw.subarray(e.start, e.end)))
   const wrapped = clusters.map(c => element(ID.Cluster, c.data))
 
   // cue points take fixed-size numbers, so the size of the Cues doesn't depend on the positions
@@ -217,4 +218,17 @@ export function makeSeekable(raw: Buffer, opts: { frameSeconds?: number } = {}):
   const cues = element(ID.Cues, Buffer.concat(cued.map(x => cueFor(x.c.time, positions[x.i]!))))
   const body = Buffer.concat([newInfo, ...kept, cues, ...wrapped])
   return Buffer.concat([raw.subarray(header.start, header.end), element(ID.Segment, body)])
+}
+
+/** The Tracks element with every video track's DefaultDuration set to `frameSeconds`. */
+function withFrameDuration(raw: Buffer, tracks: El, frameSeconds: number): Buffer {
+  const entries = children(raw, tracks.dataStart, tracks.end).map((entry) => {
+    if (entry.id !== ID.TrackEntry) return raw.subarray(entry.start, entry.end)
+    const kids = children(raw, entry.dataStart, entry.end)
+    const type = kids.find(k => k.id === ID.TrackType)
+    if (!type || readUint(raw, type) !== 1) return raw.subarray(entry.start, entry.end)
+    const kept = kids.filter(k => k.id !== ID.DefaultDuration).map(k => raw.subarray(k.start, k.end))
+    return element(ID.TrackEntry, Buffer.concat([...kept, element(ID.DefaultDuration, uint8(Math.round(frameSeconds * 1e9)))]))
+  })
+  return element(ID.Tracks, Buffer.concat(entries))
 }

@@ -1,11 +1,16 @@
-import { readdirSync } from 'node:fs'
+import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
 import knex, { type Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { knexConfig } from '../../knexfile'
 import { seed as seedAccounts } from '../../seeds/01_demo-accounts'
 import { seed as seedBuilds } from '../../seeds/02_demo-builds'
 import { seed as seedFindings } from '../../seeds/03_demo-findings'
+import { seed as seedFiles } from '../../seeds/04_demo-files'
 import { seed as seedDigests } from '../../seeds/05_demo-digests'
+import { ARCWHEEL_CLIP } from '../../scripts/lib/demoClips'
+import { statedFrameRate } from '../../utils/motion'
 import { solveTarget, targetDesign } from '../../server/utils/measure/design'
 import { buildTargetDetail } from '../../server/utils/measure/scoreboard'
 import { findTarget } from '../../server/utils/measure/targets'
@@ -15,7 +20,8 @@ import { ROOT, SCRATCH_DATABASE_URL } from '../support/env'
 // changing a row, and the flywheel launcher's story holds: its balls leave at about 0.8 of the
 // wheels' rim speed on every revision, so the calibration factor is consistent and solving the
 // wheel radius for the 20 m/s threshold gives a sensible wheel.
-// (04_demo-files is left out: it writes to the file store the app under test uses.)
+// 04_demo-files writes its files to a scratch directory of its own here (NUXT_FILES_DIR), not to
+// the store the app under test uses.
 //
 // Hand-worked numbers: rim speed v = ωr (OpenStax University Physics Vol. 1, eq. 10.4) with
 // 1 rpm = 2π/60 rad/s (NIST SP 811, B.8 via the revolution):
@@ -37,10 +43,28 @@ async function fingerprint(db: Knex): Promise<Record<string, string>> {
 
 describe('the demo seed', () => {
   let db: Knex
+  // the track readings' migration won't roll back over tracks (it would lose them)
+  const rollBack = async () => {
+    if (await db.schema.hasColumn('readings', 'track')) await db('readings').whereNotNull('track').delete()
+    await db.migrate.rollback(undefined, true)
+  }
+  const filesDir = mkdtempSync(join(tmpdir(), 'ratchet-seed-files-'))
   const runSeeds = async () => {
     await seedAccounts(db)
     await seedBuilds(db)
     await seedFindings(db)
+    const env = { driver: process.env.NUXT_FILES_DRIVER, dir: process.env.NUXT_FILES_DIR }
+    process.env.NUXT_FILES_DRIVER = 'fs'
+    process.env.NUXT_FILES_DIR = filesDir
+    try {
+      await seedFiles(db)
+    }
+    finally {
+      for (const [k, v] of [['NUXT_FILES_DRIVER', env.driver], ['NUXT_FILES_DIR', env.dir]] as const) {
+        if (v === undefined) delete process.env[k]
+        else process.env[k] = v
+      }
+    }
     await seedDigests(db)
   }
 
@@ -57,15 +81,16 @@ describe('the demo seed', () => {
         },
       },
     })
-    await db.migrate.rollback(undefined, true)
+    await rollBack()
     await db.migrate.latest()
     await runSeeds()
   })
   afterAll(async () => {
     if (!db) return
-    await db.migrate.rollback(undefined, true)
+    await rollBack()
     await db.migrate.latest()
     await db.destroy()
+    rmSync(filesDir, { recursive: true, force: true })
   })
 
   it('changes nothing when it runs a second time', async () => {
@@ -88,7 +113,8 @@ describe('the demo seed', () => {
     expect(byRev.R3!.predicted!.value).toBeCloseTo(22.61947, 4)
     expect(byRev.R1!.measured!.mean).toBeCloseTo(12.6, 10)
     expect(byRev.R2!.measured!.mean).toBeCloseTo(15.05, 10)
-    expect(byRev.R3!.measured!.mean).toBeCloseTo(18.1, 10)
+    // R3 pools the Doppler samples (mean 18.10) with the clip's track reading (18.099 ± 0.023 m/s)
+    expect(byRev.R3!.measured!.mean).toBeCloseTo(18.1, 2)
     const ratios = design.revisions.map(r => r.ratio!.value)
     expect(ratios).toHaveLength(3)
     // consistent: every revision within 0.5 % of the others
@@ -129,5 +155,26 @@ describe('the demo seed', () => {
     // Trailhopper's current limit is the controller's, not the pack's: no number to state
     const trailhopper = (await db('builds').where({ slug: 'trailhopper' }).first())!
     expect((await buildTargetDetail(db, trailhopper, 'owner', 'peak_current')).cautions).toEqual([])
+  })
+
+  it('gives the flywheel launcher a 240 fps clip with the track reading measured on it', async () => {
+    const build = (await db('builds').where({ slug: 'arcwheel' }).first())!
+    const file = (await db('files').where({ build_id: build.id, name: ARCWHEEL_CLIP.file }).first())!
+    expect(file.content_type).toBe('video/webm')
+    const reading = (await db('readings').where({ id: file.reading_id }).first())!
+    expect(reading.track).toMatchObject({ timeUnit: 's', unit: 'mm', file: file.id })
+    expect(reading.track!.points).toHaveLength(9)
+    expect(reading.method).toBe('footage, 240 fps, 9 frames')
+    expect(reading.stated_dof).toBe(7)
+    // the clip was drawn with the ball at 18.1 m/s: the fitted speed holds it within its 95 % interval,
+    // t(0.975, 7) = 2.365 (NIST/SEMATECH e-Handbook 1.3.6.7.2)
+    const u = reading.stated_u_si!
+    expect(Math.abs(reading.values_si[0]! - 18.1)).toBeLessThan(2.365 * u)
+    expect(u).toBeGreaterThan(0.005)
+    expect(u).toBeLessThan(0.05)
+    // the file states its frame rate, as a camera's file would
+    const bytes = readFileSync(join(ROOT, 'seeds/assets', ARCWHEEL_CLIP.file))
+    const rate = await statedFrameRate(async (from, to) => new Uint8Array(bytes.subarray(from, to)), bytes.length)
+    expect(rate.fps).toBe(240)
   })
 })
