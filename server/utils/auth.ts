@@ -26,10 +26,23 @@ export function clientIp(event: H3Event): string {
  */
 export async function requireUser(event: H3Event): Promise<SessionUser> {
   if (event.context.user) return event.context.user as SessionUser
+  const session = await signedInSession(event)
+  // a session signed out of (revoked_sessions) has ended too, whatever its cookie says
+  const [row] = await prepared<SessionRow>(useDb(), 'SELECT id, name, email, session_version, EXISTS (SELECT 1 FROM revoked_sessions WHERE sid = $2) AS revoked FROM users WHERE id = $1', [session.user.id, sessionId(session)])
+  return await acceptSession(event, session, row)
+}
+
+type SignedIn = Awaited<ReturnType<typeof getUserSession>> & { user: { id: string } }
+interface SessionRow { id: string, name: string, email: string, session_version: number, revoked: boolean }
+
+async function signedInSession(event: H3Event): Promise<SignedIn> {
   const session = await getUserSession(event)
   if (!session.user) throw createError({ statusCode: 401, message: 'Sign in first' })
-  // a session signed out of (revoked_sessions) has ended too, whatever its cookie says
-  const [row] = await prepared<{ id: string, name: string, email: string, session_version: number, revoked: boolean }>(useDb(), 'SELECT id, name, email, session_version, EXISTS (SELECT 1 FROM revoked_sessions WHERE sid = $2) AS revoked FROM users WHERE id = $1', [session.user.id, sessionId(session)])
+  return session as SignedIn
+}
+
+/** The user the session row shows, or 401 (and the cookie cleared) when the session has ended. */
+async function acceptSession(event: H3Event, session: SignedIn, row: SessionRow | undefined): Promise<SessionUser> {
   if (!row || row.session_version !== session.sessionVersion || row.revoked) {
     await clearUserSession(event)
     throw createError({ statusCode: 401, message: 'Your session has ended; sign in again' })
@@ -111,15 +124,44 @@ export async function requireBuildRole(event: H3Event, buildKey: string, min: Ro
     const actor: Actor = { userId: null, rigTokenId: token.id, name: label, label, role: 'engineer', origin: originOf(event) }
     return { build, role: 'engineer', user: null, rigTokenId: token.id, actorId: null, actorLabel: label, actor }
   }
-  const user = await requireUser(event)
-  const row = await byIdOrSlug(db('builds')
-    .join('memberships', 'memberships.team_id', 'builds.team_id')
-    .where('memberships.user_id', user.id), 'builds', buildKey)
-    .first('builds.*', 'memberships.role as member_role')
+  const { user, row } = event.context.user ? { user: event.context.user as SessionUser, row: await memberBuild(db, (event.context.user as SessionUser).id, buildKey) } : await userAndBuild(event, buildKey)
   if (!row) throw createError({ statusCode: 404, message: 'Build not found' })
   const { member_role: role, ...build } = row
   if (!roleAtLeast(role, min)) refuse(role, min)
   return { build, role, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role) }
+}
+
+type MemberBuild = BuildRow & { member_role: Role }
+
+/** The build (by id or slug) if `userId` is a member of its team, with their role. */
+async function memberBuild(db: Knex, userId: string, buildKey: string): Promise<MemberBuild | undefined> {
+  return await byIdOrSlug(db('builds')
+    .join('memberships', 'memberships.team_id', 'builds.team_id')
+    .where('memberships.user_id', userId), 'builds', buildKey)
+    .first('builds.*', 'memberships.role as member_role') as MemberBuild | undefined
+}
+
+// the session's check and the build with the member's role, in one round trip: every build route starts here
+const USER_AND_BUILD = `SELECT u.id AS _user_id, u.name AS _user_name, u.email AS _user_email, u.session_version AS _session_version,
+  EXISTS (SELECT 1 FROM revoked_sessions WHERE sid = $2) AS _revoked, x.*
+  FROM users u
+  LEFT JOIN LATERAL (SELECT b.*, m.role AS member_role FROM builds b JOIN memberships m ON m.team_id = b.team_id AND m.user_id = u.id
+    WHERE b.id = $3::uuid OR b.slug = $4 LIMIT 1) x ON true
+  WHERE u.id = $1`
+
+type UserAndBuildRow = { _user_id: string, _user_name: string, _user_email: string, _session_version: number, _revoked: boolean } & (MemberBuild | { [K in keyof MemberBuild]: null })
+
+/** requireUser and memberBuild in one statement. */
+async function userAndBuild(event: H3Event, buildKey: string): Promise<{ user: SessionUser, row: MemberBuild | undefined }> {
+  const session = await signedInSession(event)
+  const uuid = UUID.test(buildKey) ? buildKey : null
+  // a key no slug can be (NUL, too long) matches nothing, rather than upsetting the database
+  const slug = !uuid && buildKey.length <= 200 && !buildKey.includes('\0') ? buildKey.toLowerCase() : null
+  const [found] = await prepared<UserAndBuildRow>(useDb(), USER_AND_BUILD, [session.user.id, sessionId(session), uuid, slug])
+  if (!found) return { user: await acceptSession(event, session, undefined), row: undefined }
+  const { _user_id: id, _user_name: name, _user_email: email, _session_version: version, _revoked: revoked, ...build } = found
+  const user = await acceptSession(event, session, { id, name, email, session_version: version, revoked })
+  return { user, row: build.id === null ? undefined : build as MemberBuild }
 }
 
 export function bearerToken(event: H3Event): string | null {

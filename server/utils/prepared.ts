@@ -42,3 +42,31 @@ export async function prepared<R>(db: Db, text: string, values: unknown[]): Prom
     await client.releaseConnection(connection)
   }
 }
+
+/**
+ * Runs several read-only queries in one round trip: their SQL, bindings inlined by Knex's own
+ * quoting, goes to the server as one simple-protocol message, and each query's rows come back in
+ * order, parsed by the same type parsers. For the reads a page runs side by side, where the round
+ * trips, not the statements, were the cost (`npm run bench -- load`). Values are quoted by Knex,
+ * never pasted into the text.
+ */
+export async function batch<T extends unknown[]>(db: Db, queries: { [K in keyof T]: Knex.QueryBuilder | Knex.Raw }): Promise<{ [K in keyof T]: T[K][] }> {
+  const client = db.client as Knex.Client & { acquireConnection(): Promise<pg.PoolClient>, releaseConnection(c: pg.PoolClient): Promise<void> }
+  const text = (queries as (Knex.QueryBuilder | Knex.Raw)[]).map(q => q.toQuery()).join(';\n')
+  const query = { __knexQueryUid: randomUUID(), sql: text, bindings: [], method: 'raw' }
+  const connection = await client.acquireConnection()
+  try {
+    client.emit('query', query)
+    const result = await connection.query(text) as unknown as pg.QueryResult | pg.QueryResult[]
+    client.emit('query-response', result, query)
+    const results = Array.isArray(result) ? result : [result]
+    return results.map(r => r.rows) as { [K in keyof T]: T[K][] }
+  }
+  catch (error) {
+    client.emit('query-error', error, query)
+    throw error
+  }
+  finally {
+    await client.releaseConnection(connection)
+  }
+}

@@ -60,10 +60,10 @@ describe('the demo seed', () => {
       await seedFiles(db)
     }
     finally {
-      for (const [k, v] of [['NUXT_FILES_DRIVER', env.driver], ['NUXT_FILES_DIR', env.dir]] as const) {
-        if (v === undefined) delete process.env[k]
-        else process.env[k] = v
-      }
+      if (env.driver === undefined) delete process.env.NUXT_FILES_DRIVER
+      else process.env.NUXT_FILES_DRIVER = env.driver
+      if (env.dir === undefined) delete process.env.NUXT_FILES_DIR
+      else process.env.NUXT_FILES_DIR = env.dir
     }
     await seedDigests(db)
   }
@@ -161,7 +161,7 @@ describe('the demo seed', () => {
     const build = (await db('builds').where({ slug: 'arcwheel' }).first())!
     const file = (await db('files').where({ build_id: build.id, name: ARCWHEEL_CLIP.file }).first())!
     expect(file.content_type).toBe('video/webm')
-    const reading = (await db('readings').where({ id: file.reading_id }).first())!
+    const reading = (await db('readings').where({ id: file.reading_id! }).first())!
     expect(reading.track).toMatchObject({ timeUnit: 's', unit: 'mm', file: file.id })
     expect(reading.track!.points).toHaveLength(9)
     expect(reading.method).toBe('footage, 240 fps, 9 frames')

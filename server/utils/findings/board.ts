@@ -5,8 +5,9 @@ import { hazardOf } from '../../../shared/utils/caution'
 import type { FindingListQuery } from '../../../shared/utils/findingSchemas'
 import { LANES, OPEN_LANES, verificationOf, type CellStatus, type Lane, type Severity, type VerificationFacts } from '../../../shared/utils/lanes'
 import type { Role } from '../../../shared/utils/roles'
-import type { TargetRow } from '../../db/tables'
+import type { CellRow, TargetRow } from '../../db/tables'
 import type { Db } from '../db'
+import { batch } from '../prepared'
 import { seriesOf } from '../measure/history'
 
 // The board's read model: findings with their targets and fixes (the board's cards, API v1's
@@ -96,21 +97,21 @@ export interface BuildFacts {
 }
 
 export async function buildFacts(db: Db, buildId: string): Promise<BuildFacts> {
-  // one after the other: `db` may be a transaction (one connection)
-  const revisions = await db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq')
-  const targets = await db('targets').where({ build_id: buildId })
+  // one round trip (`db` may be a transaction: one connection either way)
+  const [revisions, targets, cells] = await batch<[{ id: string, label: string, seq: number }, TargetRow, CellRow]>(db, [
+    db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq'),
+    db('targets').where({ build_id: buildId }),
+    db('cell_stats').where({ build_id: buildId }),
+  ])
   const derived = targets.filter(t => t.formula !== null)
-  // a build without derived targets needs only the statuses
-  const cells = derived.length ? await db('cell_stats').where({ build_id: buildId }) : null
-  const statuses = cells ?? await db('cell_stats').where({ build_id: buildId }).select('revision_id', 'target_id', 'status')
   const byRevision = new Map<string, Record<string, CellStatus>>()
   const mark = (revisionId: string, targetId: string, status: CellStatus) => {
     const m = byRevision.get(revisionId) ?? {}
     m[targetId] = status
     byRevision.set(revisionId, m)
   }
-  for (const c of statuses!) mark(c.revision_id, c.target_id, c.status)
-  if (cells) {
+  for (const c of cells) mark(c.revision_id, c.target_id, c.status)
+  if (derived.length) {
     const series = seriesOf(targets, revisions, cells)
     const idOf = new Map(revisions.map(r => [r.label, r.id]))
     for (const t of derived) for (const h of series.get(t.id)?.history ?? []) mark(idOf.get(h.revision)!, t.id, h.status)
@@ -144,15 +145,15 @@ interface Listed {
 
 /** The build's findings with their targets and fixes; for the board, only what a card shows. */
 async function listRows(db: Db, buildId: string, o: ListOptions, forBoard: boolean): Promise<Listed> {
-  const [rows, targetRows, fixRows] = await Promise.all([
+  const [rows, targetRows, fixRows] = await batch<[ListedRow, { finding_id: string, id: string, key: string }, FixJoinedRow]>(db, [
     scoped(db('findings as f').leftJoin('revisions as s', 's.id', 'f.seen_on_revision_id'), buildId, o)
       .select('f.id', 'f.title', 'f.lane', 'f.severity', 'f.rank', 'f.version', 's.label as seen_label', 's.seq as seen_seq',
         ...(forBoard ? ['f.description'] : [db.raw(ISO_TIMES)]))
-      .orderByRaw(`${LANE_ORDER}, (f.severity <> 'safety'), f.rank`) as Promise<ListedRow[]>,
+      .orderByRaw(`${LANE_ORDER}, (f.severity <> 'safety'), f.rank`),
     scoped(db('finding_targets as ft').join('findings as f', 'f.id', 'ft.finding_id').join('targets as t', 't.id', 'ft.target_id'), buildId, o)
       .orderBy([{ column: 't.position' }, { column: 't.key' }])
-      .select('ft.finding_id', 't.id', 't.key') as Promise<{ finding_id: string, id: string, key: string }[]>,
-    scoped(fixesQuery(db, forBoard), buildId, o) as Promise<FixJoinedRow[]>,
+      .select('ft.finding_id', 't.id', 't.key'),
+    scoped(fixesQuery(db, forBoard), buildId, o),
   ])
   const targets = new Map<string, { id: string, key: string }[]>()
   for (const t of targetRows) {

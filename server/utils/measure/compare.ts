@@ -1,8 +1,10 @@
+import type { Knex } from 'knex'
 import type { CantEvaluate, ComparedTarget, CompareSide, Comparison, FixLanded, HistoryEntry, Mover, ParameterDiff, RevisionView, TargetView } from '../../../shared/types/api'
 import { effectiveParameters, type EffectiveParameter } from '../../../shared/utils/design'
 import { compareCells, rankMovements } from '../../../shared/utils/movers'
 import { StatsOverflowError } from '../../../shared/utils/readingStats'
-import { findRevision, listRevisions } from './revisions'
+import { batch } from '../prepared'
+import { findRevision, revisionsQuery, revisionViewOf } from './revisions'
 import { seriesOf, type TargetSeries } from './history'
 import type { CellRow, TargetRow } from '../../db/tables'
 import type { Db } from '../db'
@@ -21,16 +23,24 @@ export interface BuildState {
 }
 
 export async function loadBuildState(db: Db, buildId: string): Promise<BuildState> {
-  const [targets, revisions, cells] = await Promise.all([
+  const [targets, revisionRows, cells] = await batch<[TargetRow, Parameters<typeof revisionViewOf>[0], CellRow]>(db, [
     db('targets').where({ build_id: buildId }).orderBy([{ column: 'position' }, { column: 'key' }]),
-    listRevisions(db, buildId),
+    revisionsQuery(db, buildId),
     db('cell_stats').where({ build_id: buildId }),
   ])
+  const revisions = revisionRows.map(revisionViewOf)
   return { targets, revisions, cells, series: seriesOf(targets, revisions, cells) }
 }
 
 /** Fixes that landed in the build's revisions (or in one), with their findings (one query). */
 export async function fixesLanded(db: Db, buildId: string, revisionId?: string): Promise<FixLanded[]> {
+  return (await fixesLandedQuery(db, buildId, revisionId)).map(fixLandedOf)
+}
+
+export type FixLandedRow = { id: string, description: string, label: string, finding_id: string, title: string, severity: string, lane: string, target_keys: string[] }
+
+/** fixesLanded's query, for reads that send it in a batch; its rows map with fixLandedOf. */
+export function fixesLandedQuery(db: Db, buildId: string, revisionId?: string) {
   const q = db('fixes as f')
     .join('findings as fd', 'fd.id', 'f.finding_id')
     .join('revisions as r', 'r.id', 'f.landed_revision_id')
@@ -41,14 +51,17 @@ export async function fixesLanded(db: Db, buildId: string, revisionId?: string):
       db.raw(`coalesce((SELECT array_agg(t.key ORDER BY t.position, t.key) FROM finding_targets ft JOIN targets t ON t.id = ft.target_id
         WHERE ft.finding_id = fd.id), '{}') AS target_keys`))
   if (revisionId) q.where('f.landed_revision_id', revisionId)
-  const rows = await q as { id: string, description: string, label: string, finding_id: string, title: string, severity: string, lane: string, target_keys: string[] }[]
-  return rows.map(r => ({
+  return q as unknown as Knex.QueryBuilder<FixLandedRow, FixLandedRow[]>
+}
+
+export function fixLandedOf(r: FixLandedRow): FixLanded {
+  return {
     id: r.id,
     description: r.description,
     revision: r.label,
     finding: { id: r.finding_id, title: r.title, severity: r.severity, lane: r.lane },
     targets: r.target_keys,
-  }))
+  }
 }
 
 function side(h: HistoryEntry): CompareSide {

@@ -23,6 +23,11 @@ type ParamRevision = Pick<RevisionRow, 'id' | 'label' | 'seq' | 'parent_id' | 'p
 /** Every revision of the build (oldest first) with its effective parameters. */
 export async function revisionsWithParameters(db: Db, buildId: string): Promise<(ParamRevision & { effective: EffectiveParameter[] })[]> {
   const rows: ParamRevision[] = await db('revisions').where({ build_id: buildId }).orderBy('seq').select('id', 'label', 'seq', 'parent_id', 'parameters')
+  return withEffectiveParameters(rows)
+}
+
+/** Revision rows (oldest first, with parent_id and parameters) with their effective parameters. */
+export function withEffectiveParameters<R extends ParamRevision>(rows: R[]): (R & { effective: EffectiveParameter[] })[] {
   const byId = new Map(rows.map(r => [r.id, r]))
   return rows.map(r => ({ ...r, effective: effectiveParameters(chainOf(byId, r.id)) }))
 }

@@ -103,6 +103,13 @@ export async function unfreezeRevision(trx: Db, rev: RevisionRow): Promise<void>
 
 /** The build's revisions, oldest first, with their reading counts (one query). */
 export async function listRevisions(db: Db, buildId: string, onlyId?: string): Promise<RevisionView[]> {
+  return (await revisionsQuery(db, buildId, onlyId)).map(revisionViewOf)
+}
+
+export type RevisionListRow = RevisionRow & { parent_label: string | null, frozen_by_name: string | null, reading_count: number, targets_tested: number }
+
+/** listRevisions' query, for reads that send it in a batch (prepared.ts); its rows map with revisionViewOf. */
+export function revisionsQuery(db: Db, buildId: string, onlyId?: string) {
   const q = db('revisions as r')
     .leftJoin('revisions as p', 'p.id', 'r.parent_id')
     .leftJoin('users as f', 'f.id', 'r.frozen_by')
@@ -112,8 +119,11 @@ export async function listRevisions(db: Db, buildId: string, onlyId?: string): P
       db('readings').whereRaw('readings.revision_id = r.id').count('*').as('reading_count'),
       db('cell_stats').whereRaw('cell_stats.revision_id = r.id').count('*').as('targets_tested'))
   if (onlyId) q.where('r.id', onlyId)
-  const rows = await q as (RevisionRow & { parent_label: string | null, frozen_by_name: string | null, reading_count: number, targets_tested: number })[]
-  return rows.map(r => ({
+  return q as unknown as Knex.QueryBuilder<RevisionListRow, RevisionListRow[]>
+}
+
+export function revisionViewOf(r: RevisionListRow): RevisionView {
+  return {
     ...revisionBrief(r, r.parent_label),
     changes: r.changes,
     parameters: r.parameters,
@@ -121,5 +131,5 @@ export async function listRevisions(db: Db, buildId: string, onlyId?: string): P
     readings: Number(r.reading_count),
     targetsTested: Number(r.targets_tested),
     createdAt: new Date(r.created_at).toISOString(),
-  }))
+  }
 }

@@ -2,18 +2,20 @@ import type { BuildHealth, HistoryEntry, RevisionDetail, ScoreTarget, Scoreboard
 import type { Role } from '../../../shared/utils/roles'
 import { marginOf, type TargetStatus } from '../../../shared/utils/conformance'
 import { forecastOfHistory } from '../../../shared/utils/forecast'
-import { comparison, fixesLanded, loadBuildState, moversOf } from './compare'
+import { comparison, fixesLanded, fixesLandedQuery, fixLandedOf, loadBuildState, moversOf, type FixLandedRow } from './compare'
 import { designCautions } from '../../../shared/utils/designCautions'
 import { DesignError, modelKeys, predict } from '../../../shared/utils/design'
 import { FormulaError } from '../../../shared/utils/derived'
-import { effectiveParametersOf, revisionsWithParameters } from './design'
+import type { revisionsWithParameters } from './design'
+import { effectiveParametersOf, withEffectiveParameters } from './design'
 import { formulaKeys } from './formulas'
 import { seriesOf, type TargetSeries } from './history'
 import type { CellRow, ReadingRow, RevisionRow, TargetRow } from '../../db/tables'
 import type { Db } from '../db'
+import { batch } from '../prepared'
 import { readingDetail, readingsQuery } from './readings'
-import { revisionBrief } from './revisions'
-import { findTarget, targetView } from './targets'
+import { revisionBrief, revisionsQuery, revisionViewOf, type RevisionListRow } from './revisions'
+import { isTargetKey, targetNotFound, targetView } from './targets'
 
 // Read models: the scoreboard (target strip and readings matrix in one answer), the target and
 // revision pages, and the team's list of builds with their health. Statistics come from the
@@ -57,11 +59,11 @@ export function buildView(b: Omit<BuildRef, 'team_id'> & { created_at: Date }) {
  * from the cells loaded here, so their number doesn't change the query count.
  */
 export async function buildScoreboard(db: Db, build: BuildRef): Promise<Scoreboard> {
-  const [targets, revisions, cells] = await Promise.all([
+  const [targets, revisions, cells] = await batch<[TargetRow, RevisionRow & { parent_label: string | null }, CellRow]>(db, [
     db('targets').where({ build_id: build.id }).orderBy([{ column: 'position' }, { column: 'key' }]),
     db('revisions as r').leftJoin('revisions as p', 'p.id', 'r.parent_id').where('r.build_id', build.id).orderBy('r.seq')
-      .select('r.id', 'r.label', 'r.seq', 'r.built_on', 'r.summary', 'r.frozen_at', 'p.label as parent_label') as Promise<(RevisionRow & { parent_label: string | null })[]>,
-    db('cell_stats').where({ build_id: build.id }).select(CELL_COLUMNS) as Promise<CellRow[]>,
+      .select('r.id', 'r.label', 'r.seq', 'r.built_on', 'r.summary', 'r.frozen_at', 'p.label as parent_label'),
+    db('cell_stats').where({ build_id: build.id }).select(CELL_COLUMNS),
   ])
   const series = seriesOf(targets, revisions, cells)
   const labels = revisions.map(r => r.label)
@@ -78,13 +80,22 @@ export async function buildScoreboard(db: Db, build: BuildRef): Promise<Scoreboa
  * reading, the forecast, and the revisions ranked by how they moved it.
  */
 export async function buildTargetDetail(db: Db, build: BuildRef, role: Role, key: string): Promise<TargetDetail> {
-  const t = await findTarget(db, build.id, key)
-  const [state, readings, fixes, withParameters] = await Promise.all([
-    loadBuildState(db, build.id),
-    readingsQuery(db).where('rd.target_id', t.id) as Promise<(ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null })[]>,
-    fixesLanded(db, build.id),
-    revisionsWithParameters(db, build.id),
+  const wanted = String(key).trim()
+  if (!isTargetKey(wanted)) throw targetNotFound(key)
+  // everything in one round trip: the build's state, the target's readings, the landed fixes
+  const [targets, revisionRows, cells, readings, fixRows] = await batch<[TargetRow, RevisionListRow, CellRow, ReadingRow & { revision_label: string, by_user: string | null, by_rig: string | null }, FixLandedRow]>(db, [
+    db('targets').where({ build_id: build.id }).orderBy([{ column: 'position' }, { column: 'key' }]),
+    revisionsQuery(db, build.id),
+    db('cell_stats').where({ build_id: build.id }),
+    readingsQuery(db).whereIn('rd.target_id', db('targets').select('id').where({ build_id: build.id, key: wanted })),
+    fixesLandedQuery(db, build.id),
   ])
+  const t = targets.find(x => x.key === wanted)
+  if (!t) throw targetNotFound(key)
+  const revisionViews = revisionRows.map(revisionViewOf)
+  const state = { targets, revisions: revisionViews, series: seriesOf(targets, revisionViews, cells) }
+  const fixes = fixRows.map(fixLandedOf)
+  const withParameters = withEffectiveParameters(revisionRows)
   const series = state.series.get(t.id)!
   const labels = state.revisions.map(r => r.label)
   const { view, latest, status, margin, forecast } = standing(t, series.history, labels)

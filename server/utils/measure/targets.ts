@@ -82,9 +82,16 @@ export async function findTarget(db: Db, buildId: string, key: string, lock = fa
   const wanted = String(key).trim()
   // a key that can't exist is not looked up (nor is text PostgreSQL would refuse)
   const q = db('targets').where({ build_id: buildId, key: wanted }).first()
-  const row = TARGET_KEY.test(wanted) ? await (lock ? q.forUpdate() : q) : undefined
-  if (!row) throw createError({ statusCode: 404, message: `Target "${key}" not found in this build`, data: { fields: { target: 'Not found in this build' } } })
+  const row = isTargetKey(wanted) ? await (lock ? q.forUpdate() : q) : undefined
+  if (!row) throw targetNotFound(key)
   return row
+}
+
+/** Whether `key` can be a target's key (one that can't is not looked up). */
+export const isTargetKey = (key: string) => TARGET_KEY.test(key)
+
+export function targetNotFound(key: string) {
+  return createError({ statusCode: 404, message: `Target "${key}" not found in this build`, data: { fields: { target: 'Not found in this build' } } })
 }
 
 function duplicateKey(key: string) {
