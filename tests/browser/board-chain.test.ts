@@ -173,6 +173,13 @@ describe('finding pages, the board\'s keys and the app\'s requests in Chromium',
       expect(outside).toEqual([])
       await screenshot(page, `findings-board-${width}-light`)
     }
+    // the help explains the marks, each drawn beside its meaning
+    await page.setViewportSize({ width: 1440, height: 900 })
+    await page.locator('[data-testid="board-marks"] summary').click()
+    const marks = page.locator('[data-testid="board-marks"]')
+    await expect(marks.locator('[data-testid="lane-mark"]').count()).resolves.toBe(6)
+    await expect(marks.locator('[data-testid="severity-mark"]').evaluateAll(els => els.map(e => e.getAttribute('data-teeth')))).resolves.toEqual(['4', '3', '2', '1'])
+    await screenshot(page, 'findings-board-marks-help')
     await context.close()
   })
 
