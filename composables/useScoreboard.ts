@@ -5,7 +5,9 @@
 export async function useScoreboard(build: string) {
   const store = useScoreboardStore()
   const notices = useNoticeStore()
-  const { status, error, refresh } = await useAsyncData(`scoreboard-${build}`, () => store.load(build))
+  // pages of one build share the key; one mounting while the other's request is in flight (the
+  // old and new page overlap during a navigation) joins that request instead of asking again
+  const { status, error, refresh } = await useAsyncData(`scoreboard-${build}`, () => store.load(build), { dedupe: 'defer' })
   const scoreboard = computed(() => store.scoreboards[build])
 
   async function reorder(keys: string[]) {

@@ -9,9 +9,23 @@ export const useScoreboardStore = defineStore('scoreboard', () => {
   // forwards the visitor's cookie while rendering on the server
   const request = useRequestFetch()
 
-  async function load(build: string) {
-    scoreboards.value[build] = await request<Scoreboard>(`/api/v1/builds/${encodeURIComponent(build)}/scoreboard`)
-    return true
+  // one request per build at a time: a page that asks while another's request is still out (the
+  // old and the new page overlap during a navigation, and the old one's request outlives it) shares it
+  const inFlight = new Map<string, Promise<boolean>>()
+  function load(build: string): Promise<boolean> {
+    const pending = inFlight.get(build)
+    if (pending) return pending
+    const asked = (async () => {
+      try {
+        scoreboards.value[build] = await request<Scoreboard>(`/api/v1/builds/${encodeURIComponent(build)}/scoreboard`)
+        return true
+      }
+      finally {
+        inFlight.delete(build)
+      }
+    })()
+    inFlight.set(build, asked)
+    return asked
   }
 
   /** Optimistic: the strip shows the new order at once and falls back if the server refuses. */

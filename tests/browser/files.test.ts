@@ -5,17 +5,21 @@ import { goto, launchBrowser, newContext, screenshot, signIn } from '../support/
 import { byteSource, PNG_1x1 } from '../support/files'
 import { newRevision, newTarget } from '../support/measure'
 
-/** Records every value the upload progress bars take, from the page itself. */
+/** Records every value the upload progress bars take, and what a sending upload says, from the page itself. */
 async function recordProgress(page: Page) {
   await page.evaluate(() => {
-    const w = window as unknown as { progressSeen: number[] }
+    const w = window as unknown as { progressSeen: number[], sendingWords: string[] }
     w.progressSeen = []
+    w.sendingWords = []
     new MutationObserver(() => {
       for (const bar of document.querySelectorAll('[data-testid="upload-progress"]')) w.progressSeen.push(Number(bar.getAttribute('aria-valuenow')))
-    }).observe(document.body, { subtree: true, childList: true, attributes: true, attributeFilter: ['aria-valuenow'] })
+      for (const state of document.querySelectorAll('[data-testid="upload-sending"] [data-testid="upload-state"]')) w.sendingWords.push(state.textContent!.trim())
+    }).observe(document.body, { subtree: true, childList: true, characterData: true, attributes: true, attributeFilter: ['aria-valuenow'] })
   })
   return async () => await page.evaluate(() => (window as unknown as { progressSeen: number[] }).progressSeen)
 }
+
+const sendingWords = async (page: Page) => await page.evaluate(() => (window as unknown as { sendingWords: string[] }).sendingWords)
 
 describe('files in Chromium', () => {
   let browser: Browser
@@ -55,6 +59,10 @@ describe('files in Chromium', () => {
     // the bar moved through values between empty and full while the bytes went up
     expect(seen.some(v => v > 0 && v < 100), JSON.stringify(seen)).toBe(true)
     expect(seen).toEqual([...seen].sort((a, b) => a - b))
+    // "Uploading 27 %": the word, a space, the percentage
+    const words = await sendingWords(page)
+    expect(words.length).toBeGreaterThan(0)
+    for (const said of words) expect(said).toMatch(/^Uploading \d{1,3} %$/)
 
     const card = page.locator('[data-testid="file-list"] li', { hasText: 'dyno run R1.mp4' })
     await card.waitFor()

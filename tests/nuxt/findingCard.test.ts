@@ -1,14 +1,17 @@
 import { mountSuspended } from '@nuxt/test-utils/runtime'
 import { describe, expect, it } from 'vitest'
 import FindingCard from '~/components/board/FindingCard.vue'
+import LaneMark from '~/components/finding/LaneMark.vue'
+import SeverityMark from '~/components/finding/SeverityMark.vue'
+import { LANE_LABELS, SEVERITY_LABELS, type Lane } from '#shared/utils/lanes'
 import type { CardRefusal } from '~/stores/board'
 import { makeCard } from '../support/cards'
 
 type Card = ReturnType<typeof makeCard>
 
-function mount(card: Card, opts: { canEdit?: boolean, index?: number, count?: number, refusal?: CardRefusal | null } = {}) {
+function mount(card: Card, opts: { canEdit?: boolean, index?: number, count?: number, refusal?: CardRefusal | null, tabStop?: boolean } = {}) {
   return mountSuspended(FindingCard, {
-    props: { card, build: 'trailhopper', canEdit: opts.canEdit ?? true, index: opts.index ?? 0, count: opts.count ?? 3, refusal: opts.refusal ?? null },
+    props: { card, build: 'trailhopper', canEdit: opts.canEdit ?? true, index: opts.index ?? 0, count: opts.count ?? 3, refusal: opts.refusal ?? null, tabStop: opts.tabStop ?? true },
     attachTo: document.body,
   })
 }
@@ -59,6 +62,8 @@ describe('FindingCard: keys and the Move menu', () => {
     [{ key: 'ArrowRight', altKey: true }, 'lane', ['bench']],
     [{ key: 'ArrowLeft', altKey: true }, 'lane', ['spotted']],
     [{ key: 'ArrowLeft' }, 'focusMove', ['left']],
+    [{ key: 'Home' }, 'focusMove', ['first']],
+    [{ key: 'End' }, 'focusMove', ['last']],
   ] as const)('%j emits %s %j', async (key, event, args) => {
     const w = await mount(makeCard({ lane: 'traced' }), { index: 1 })
     await w.get('article').trigger('keydown', key)
@@ -117,5 +122,56 @@ describe('FindingCard: keys and the Move menu', () => {
 
     const engineer = await mount(makeCard({ lane: 'retest' }), { refusal: { ...refusal, canOverride: false } })
     expect(engineer.find('[data-testid="card-override"]').exists()).toBe(false)
+  })
+
+  it('is its lane\'s tab stop only when told: the other cards are reached with the arrow keys', async () => {
+    const stop = await mount(makeCard({ lane: 'traced' }), { tabStop: true })
+    const other = await mount(makeCard({ lane: 'traced' }), { index: 1, tabStop: false })
+    expect(stop.get('article').attributes('tabindex')).toBe('0')
+    expect(other.get('article').attributes('tabindex')).toBe('-1')
+  })
+
+  it('keeps the Move button inside a card that shows a comment count: the header wraps', async () => {
+    const w = await mount(makeCard({ severity: 'blocks-target', comments: 12 }))
+    const header = w.get('article header')
+    expect(header.classes()).toContain('flex-wrap')
+    expect(header.find('[data-testid="card-move-menu"]').exists()).toBe(true)
+  })
+})
+
+describe('the board\'s marks: a ratchet wheel per lane, a toothed rack per severity', () => {
+  it.each([
+    ['spotted', 1], ['traced', 2], ['bench', 3], ['retest', 4], ['closed', 5], ['parked', 0],
+  ] as const)('%s: the pawl has passed %i teeth, drawn solid', async (lane, passed) => {
+    const w = await mountSuspended(LaneMark, { props: { lane } })
+    const wheel = w.get('[data-testid="lane-wheel"]')
+    expect(wheel.attributes('data-teeth-passed')).toBe(String(passed))
+    // five teeth, the passed ones filled
+    const teeth = wheel.findAll('path[stroke-linejoin="round"]').filter(p => p.element.parentElement === wheel.element)
+    expect(teeth).toHaveLength(5)
+    expect(teeth.filter(p => p.attributes('fill') === 'currentColor')).toHaveLength(passed)
+    expect(w.text()).toBe(LANE_LABELS[lane])
+  })
+
+  it('lifts the pawl off the wheel when parked: its tip is outside the teeth', async () => {
+    const tipRadius = async (lane: Lane) => {
+      const w = await mountSuspended(LaneMark, { props: { lane } })
+      const d = w.get('[data-testid="lane-pawl"] path').attributes('d')!
+      const [x, y] = d.split('L')[1]!.split(' ').map(Number)
+      return Math.hypot(x! - 10, y! - 10)
+    }
+    expect(await tipRadius('parked')).toBeGreaterThan(8.8)
+    for (const lane of ['spotted', 'traced', 'bench', 'retest', 'closed'] as const) expect(await tipRadius(lane)).toBeLessThan(8.8)
+  })
+
+  it.each([
+    ['cosmetic', 1], ['degrades', 2], ['blocks-target', 3], ['safety', 4],
+  ] as const)('%s: %i teeth and the word', async (severity, teeth) => {
+    const w = await mountSuspended(SeverityMark, { props: { severity } })
+    const mark = w.get('[data-testid="severity-mark"]')
+    expect(mark.attributes('data-teeth')).toBe(String(teeth))
+    // each tooth is a rise and a straight drop: two L commands per tooth, one for the baseline's end
+    expect(mark.get('path').attributes('d')!.split('L')).toHaveLength(2 * teeth + 2)
+    expect(w.text()).toBe(SEVERITY_LABELS[severity])
   })
 })

@@ -16,6 +16,8 @@ describe('cardKeyAction: what a key press on a focused card asks for', () => {
     [press('ArrowRight', { alt: true }), { kind: 'lane', dir: 1 }],
     [press('ContextMenu'), { kind: 'menu' }],
     [press('F10', { shift: true }), { kind: 'menu' }],
+    [press('Home'), { kind: 'focus', dir: 'first' }],
+    [press('End'), { kind: 'focus', dir: 'last' }],
   ])('%j → %j', (e, action) => {
     expect(cardKeyAction(e)).toEqual(action)
   })
@@ -28,6 +30,8 @@ describe('cardKeyAction: what a key press on a focused card asks for', () => {
     press('ArrowLeft', { alt: true, shift: true }),
     press('ArrowDown', { ctrl: true, alt: true }), // the system's and the browser's
     press('ArrowDown', { meta: true }),
+    press('Home', { shift: true }), // selects text: not a board key
+    press('End', { alt: true }),
   ])('%j → nothing', (e) => {
     expect(cardKeyAction(e)).toBeNull()
   })
