@@ -39,3 +39,15 @@ export function forecastCrossing(f: ForecastView, t: CrossingTarget): string | n
   if (!where) return null
   return `crosses ${formatNumber(crossingValue(f, t))} ${t.unit} ${where}`.replace(/ {2,}/g, ' ')
 }
+
+/**
+ * A revision's label under the history chart's axis: "R3", with the day it was built beneath
+ * ("12 Mar") when the chart has room for dates and the revision has one. Revisions the forecast
+ * reaches past the last one have no date.
+ */
+export function axisLabel(label: string, builtOn: string | null | undefined, withDates: boolean): string | string[] {
+  if (!label || !withDates || !builtOn) return label
+  const d = new Date(builtOn)
+  if (Number.isNaN(d.getTime())) return label
+  return [label, d.toLocaleDateString('en-GB', { day: 'numeric', month: 'short', timeZone: 'UTC' })]
+}

@@ -29,7 +29,10 @@ async function arrange(w: World) {
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'wheel_torque', name: 'Continuous wheel torque at the hub', unit: 'N·m', comparator: 'atLeast', threshold: 45, stretch: 48 }), 'torque')
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'top_speed', name: 'Assisted top speed', unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 }), 'speed')
   await mustSucceed(c.post(`/api/v1/builds/${b}/targets`, { key: 'pack_mass', name: 'Pack mass', unit: 'kg', comparator: 'atMost', threshold: 18, noiseBand: 0.5 }), 'mass')
-  for (const label of ['R1', 'R2', 'R3', 'R4', 'R5']) await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label, changes: [`change of ${label}`] }), label)
+  // built a week apart: 2, 9, 16, 23 and 30 March 2026
+  for (const [i, label] of ['R1', 'R2', 'R3', 'R4', 'R5'].entries()) {
+    await mustSucceed(c.post(`/api/v1/builds/${b}/revisions`, { label, changes: [`change of ${label}`], builtOn: `2026-03-${String(2 + 7 * i).padStart(2, '0')}` }), label)
+  }
   const readings = [
     { revision: 'R1', target: 'wheel_torque', values: [36, 37, 38], unit: 'N·m' },
     { revision: 'R2', target: 'wheel_torque', values: [37.5, 38.5, 39.5], unit: 'N·m' },
@@ -230,9 +233,9 @@ describe('phone layouts, refusals and the history chart in Chromium', () => {
       const chart = page.getByTestId('history-chart')
       await page.waitForFunction(() => (document.querySelector('[data-testid="history-chart"]')?.getAttribute('data-x-ticks') ?? '') !== '')
       const ticks = (await chart.getAttribute('data-x-ticks'))!.split('|')
-      // R1 … R5, then the revisions the forecast line reaches (R6, R7); on a phone chart.js may
-      // skip some for room, but never mislabels one
-      if (viewport === DESK) expect(ticks).toEqual(['R1', 'R2', 'R3', 'R4', 'R5', 'R6', 'R7'])
+      // R1 … R5 with the day each was built, then the revisions the forecast line reaches (R6, R7,
+      // no date yet); on a phone no dates, and chart.js may skip labels for room but never mislabels one
+      if (viewport === DESK) expect(ticks).toEqual(['R1 2 Mar', 'R2 9 Mar', 'R3 16 Mar', 'R4 23 Mar', 'R5 30 Mar', 'R6', 'R7'])
       else {
         expect(ticks.length).toBeGreaterThanOrEqual(4)
         expect(ticks.every(t => /^R[1-7]$/.test(t))).toBe(true)

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import type { ForecastView } from '../../../shared/utils/forecast'
-import { forecastCrossing, forecastWords } from '../../../utils/forecastWords'
+import { axisLabel, forecastCrossing, forecastWords } from '../../../utils/forecastWords'
 
 const view = (over: Partial<ForecastView>): ForecastView => ({
   status: 'not-enough-data', n: 0, slope: null, crossesAfterLast: null, crossesAt: null, line: [], caveat: '', ...over,
@@ -34,5 +34,18 @@ describe('forecastCrossing', () => {
     [view({ status: 'not-enough-data' }), speed, null],
   ])('%j on %j', (f, t, text) => {
     expect(forecastCrossing(f, t)).toBe(text)
+  })
+})
+
+describe('axisLabel', () => {
+  it.each([
+    ['R3', '2026-03-12', true, ['R3', '12 Mar']],
+    ['R3', '2026-03-12T23:30:00Z', true, ['R3', '12 Mar']], // the day in UTC, as every date in Ratchet
+    ['R3', '2026-03-12', false, 'R3'], // no room: the label alone
+    ['R7', null, true, 'R7'], // a revision the forecast reaches has no date yet
+    ['R2', 'not a date', true, 'R2'],
+    ['', '2026-03-12', true, ''],
+  ] as const)('%s %s %s', (label, builtOn, withDates, shown) => {
+    expect(axisLabel(label, builtOn, withDates)).toEqual(shown)
   })
 })
