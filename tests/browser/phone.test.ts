@@ -232,6 +232,8 @@ describe('phone layouts, refusals and the history chart in Chromium', () => {
       await goto(page, `/builds/${w.build.slug}/targets/wheel_torque`)
       const chart = page.getByTestId('history-chart')
       await page.waitForFunction(() => (document.querySelector('[data-testid="history-chart"]')?.getAttribute('data-x-ticks') ?? '') !== '')
+      // let a redraw under way (the dates follow the chart's width) finish
+      await page.evaluate(() => new Promise(resolve => requestAnimationFrame(() => requestAnimationFrame(resolve))))
       const ticks = (await chart.getAttribute('data-x-ticks'))!.split('|')
       // R1 … R5 with the day each was built, then the revisions the forecast line reaches (R6, R7,
       // no date yet); on a phone no dates, and chart.js may skip labels for room but never mislabels one
