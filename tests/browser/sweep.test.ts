@@ -12,6 +12,9 @@ import { ARTIFACTS, axeViolations, goto, launchWithWorld, newContext, screenshot
 const SIZES = [{ name: '1440', width: 1440, height: 900 }, { name: '390', width: 390, height: 844 }] as const
 const THEMES = ['light', 'dark'] as const
 const WCAG = ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa']
+// structure rules axe files under best practice rather than WCAG, checked once per page: headings
+// in order, no two landmarks of one name, no table heading without text
+const STRUCTURE = ['heading-order', 'landmark-unique', 'empty-table-header']
 
 const TARGETS = [
   { key: 'top_speed', name: 'Assisted top speed', unit: 'km/h', comparator: 'between', threshold: 24, thresholdHigh: 25 },
@@ -82,7 +85,7 @@ const overflow = async (page: Page) => await page.evaluate(() => {
 
 /** Serious and critical breaks of WCAG 2.1 A/AA in the page. */
 async function seriousViolations(page: Page): Promise<string[]> {
-  return (await axeViolations(page, undefined, WCAG)).filter(v => /\((serious|critical)\)/.test(v))
+  return (await axeViolations(page, undefined, { type: 'tag', values: WCAG })).filter(v => /\((serious|critical)\)/.test(v))
 }
 
 describe('every page in Chromium, two sizes, two themes', () => {
@@ -131,6 +134,9 @@ describe('every page in Chromium, two sizes, two themes', () => {
             const wide = await overflow(page)
             if (wide.px > 0) problems.push(`${where}: the page scrolls ${wide.px} px sideways (${wide.out.join(', ')})`)
             for (const v of await seriousViolations(page)) problems.push(`${where}: ${v}`)
+            if (theme === 'light' && size === SIZES[0] && app) {
+              for (const v of await axeViolations(page, undefined, { type: 'rule', values: STRUCTURE })) problems.push(`${where}: ${v}`)
+            }
             await screenshot(page, `sweep-${names(path)}-${size.name}-${theme}`)
           }
         }
