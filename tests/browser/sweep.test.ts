@@ -148,7 +148,7 @@ describe('every page in Chromium, two sizes, two themes', () => {
     const problems = (await Promise.all(THEMES.map(sweep))).flat()
     writeFileSync(`${ARTIFACTS}/sweep-problems.txt`, problems.join('\n'))
     expect(problems).toEqual([])
-  }, 400_000)
+  }, 600_000)
 
   it('skip links: Tab once and Enter lands in the main content; on the findings tab the next stop skips to the board', async () => {
     const context = await newContext(browser)
@@ -230,7 +230,7 @@ describe('every page in Chromium, two sizes, two themes', () => {
     await form.getByTestId('target-save').click()
     await form.waitFor({ state: 'detached' })
     const card = page.locator('[data-testid="target-strip"] article').last()
-    await expect(card.getAttribute('aria-label')).resolves.toMatch(/^Brake lever force/)
+    await expect.poll(() => card.getAttribute('aria-label')).toMatch(/^Brake lever force/)
     await expect.poll(async () => await card.evaluate((el) => {
       const r = el.getBoundingClientRect()
       return r.left >= 0 && r.right <= window.innerWidth
