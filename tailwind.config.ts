@@ -25,7 +25,7 @@ export default {
           200: '#dcdad3',
           300: '#bfbcb2',
           400: '#9a968a',
-          500: '#79756a',
+          500: '#68645a',
           600: '#5e5b52',
           700: '#47453f',
           800: '#2e2d29',
@@ -44,11 +44,13 @@ export default {
           800: '#13504c',
           900: '#134340',
         },
+        // set per theme in assets/css/main.css, so status words and marks read at 4.5:1 or more
+        // on both the light and the dark backgrounds (WCAG 2.1, 1.4.3)
         status: {
-          met: '#2f8f4e',
-          marginal: '#c28a12',
-          short: '#c2412d',
-          untested: '#7d7a8c',
+          met: 'rgb(var(--status-met) / <alpha-value>)',
+          marginal: 'rgb(var(--status-marginal) / <alpha-value>)',
+          short: 'rgb(var(--status-short) / <alpha-value>)',
+          untested: 'rgb(var(--status-untested) / <alpha-value>)',
         },
       },
       borderRadius: {

@@ -1,4 +1,4 @@
-import { z } from '../zod'
+import { z } from 'zod'
 import { ROLES } from './roles'
 
 // Shared by the forms (validation as you type) and the server (the same rules, enforced).

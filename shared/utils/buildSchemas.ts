@@ -1,4 +1,4 @@
-import { z } from '../zod'
+import { z } from 'zod'
 import { nameField, slugField } from './accountSchemas'
 
 export const BuildBody = z.object({

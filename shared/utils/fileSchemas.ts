@@ -1,4 +1,4 @@
-import { z } from '../zod'
+import { z } from 'zod'
 import { FILE_KINDS } from './contentTypes'
 
 // Shared by the files tab, the CSV import wizard and their routes.

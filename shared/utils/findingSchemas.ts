@@ -1,4 +1,4 @@
-import { z } from '../zod'
+import { z } from 'zod'
 import { FIX_STATES, LANES, SEVERITIES } from './lanes'
 import { revisionLabelField } from './revisionSchemas'
 import { targetKeyField } from './targetSchemas'

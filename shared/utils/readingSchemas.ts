@@ -1,4 +1,4 @@
-import { z } from '../zod'
+import { z } from 'zod'
 import { MAX_SAMPLES } from './readingStats'
 import { plausibleYear } from './storableText'
 import { unitField } from './targetSchemas'

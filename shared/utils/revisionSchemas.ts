@@ -1,4 +1,4 @@
-import { z } from '../zod'
+import { z } from 'zod'
 import { plausibleYear } from './storableText'
 import { numberField, unitField } from './targetSchemas'
 

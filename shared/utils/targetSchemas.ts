@@ -1,4 +1,4 @@
-import { z } from '../zod'
+import { z } from 'zod'
 import { nameField } from './accountSchemas'
 
 // Shared by the target forms and the target routes. Numbers are in the target's display unit.

@@ -76,15 +76,17 @@ let axeSource: string | null = null
 
 /**
  * The accessibility rules axe-core finds broken in the page (or in the part `include` selects), as
- * "rule (impact): the elements" lines, so a failing check says what to fix.
+ * "rule (impact): the elements" lines, so a failing check says what to fix. `only` keeps to the
+ * rules of some axe tags (e.g. wcag2aa) or to some rules by name.
  */
-export async function axeViolations(page: Page, include?: string): Promise<string[]> {
+export async function axeViolations(page: Page, include?: string, only?: { type: 'tag' | 'rule', values: string[] }): Promise<string[]> {
   axeSource ??= readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8')
   // evaluated through the debugging protocol, which the page's Content Security Policy doesn't govern
   await page.evaluate(axeSource)
-  return await page.evaluate(async (include) => {
+  return await page.evaluate(async ({ include, only }) => {
     const axe = (window as unknown as { axe: { run: (context: unknown, options: unknown) => Promise<{ violations: { id: string, impact: string, nodes: { target: string[] }[] }[] }> } }).axe
-    const result = await axe.run(include ? { include: [include] } : document, { resultTypes: ['violations'] })
+    const options = only ? { resultTypes: ['violations'], runOnly: only } : { resultTypes: ['violations'] }
+    const result = await axe.run(include ? { include: [include] } : document, options)
     return result.violations.map(v => `${v.id} (${v.impact}): ${v.nodes.map(n => n.target.join(' ')).join(', ')}`)
-  }, include)
+  }, { include, only })
 }

@@ -8,6 +8,7 @@ const PAGE = `<!doctype html>
   <title>Ratchet API reference</title>
   <link rel="icon" type="image/svg+xml" href="/favicon.svg">
   <link rel="stylesheet" href="/api/v1/docs/swagger-ui.css">
+  <link rel="stylesheet" href="/api/v1/docs/overrides.css">
 </head>
 <body>
   <div id="api-reference" data-spec="/api/v1/openapi.json"></div>
