@@ -20,7 +20,7 @@ import { addFindings, BASE_URL, http, RAW_QUERY, rawBoard, seedBuild, type Conte
 
 const SECONDS = Number(process.env.RATCHET_BENCH_LOAD_SECONDS ?? 8)
 const CONNECTIONS = 50
-/** the build page's client code budget, gzip'd (see docs/performance.md) */
+/** the build page's client code budget, gzip'd (docs/performance.md) */
 const BUDGET = { js: 200_000, css: 20_000, entry: 100_000 }
 
 interface Blast { rps: number, p50: number, p99: number, errors: number, non2xx: number, queries: number | null, bytes: number }
@@ -66,9 +66,9 @@ const msText = (x: number) => `${Math.round(x)} ms`
 const kb = (x: number) => `${(x / 1000).toFixed(1)} KB`
 
 function printTable(rows: { label: string, b: Blast }[], floor: number) {
-  console.log(`  ${'request'.padEnd(52)} ${'req/s'.padStart(8)} ${'of floor'.padStart(9)} ${'p50'.padStart(7)} ${'p99'.padStart(8)} ${'errors'.padStart(7)} ${'SQL'.padStart(4)} ${'body'.padStart(9)}`)
+  console.log(`  ${'request'.padEnd(52)} ${'req/s'.padStart(8)} ${'of floor'.padStart(9)} ${'p50'.padStart(7)} ${'p99'.padStart(8)} ${'errors'.padStart(7)} ${'trips'.padStart(5)} ${'body'.padStart(9)}`)
   for (const { label, b } of rows) {
-    console.log(`  ${label.padEnd(52)} ${b.rps.toFixed(0).padStart(8)} ${pct(b.rps / floor).padStart(9)} ${msText(b.p50).padStart(7)} ${msText(b.p99).padStart(8)} ${String(b.errors + b.non2xx).padStart(7)} ${String(b.queries ?? '–').padStart(4)} ${kb(b.bytes).padStart(9)}`)
+    console.log(`  ${label.padEnd(52)} ${b.rps.toFixed(0).padStart(8)} ${pct(b.rps / floor).padStart(9)} ${msText(b.p50).padStart(7)} ${msText(b.p99).padStart(8)} ${String(b.errors + b.non2xx).padStart(7)} ${String(b.queries ?? '–').padStart(5)} ${kb(b.bytes).padStart(9)}`)
   }
 }
 
@@ -172,13 +172,13 @@ async function largeLines(ctx: Context): Promise<void> {
           LEFT JOIN revisions r ON r.id = e.revision_id LEFT JOIN findings f ON f.id = e.finding_id WHERE e.build_id = ? ORDER BY e.id DESC LIMIT 200`, [build.id]),
       },
     ]
-    console.log(`  ${'request'.padEnd(40)} ${'req/s'.padStart(8)} ${'raw SQL/s'.padStart(10)} ${'share'.padStart(8)} ${'p99'.padStart(8)} ${'errors'.padStart(7)} ${'SQL'.padStart(4)} ${'body'.padStart(10)}`)
+    console.log(`  ${'request'.padEnd(40)} ${'req/s'.padStart(8)} ${'raw SQL/s'.padStart(10)} ${'share'.padStart(8)} ${'p99'.padStart(8)} ${'errors'.padStart(7)} ${'trips'.padStart(5)} ${'body'.padStart(10)}`)
     let worst = Infinity
     for (const r of reads) {
       const api = await blast(ctx.cookie, r.path)
       const raw = await rawThroughput(r.raw)
       worst = Math.min(worst, api.rps / raw)
-      console.log(`  ${r.label.padEnd(40)} ${api.rps.toFixed(0).padStart(8)} ${raw.toFixed(0).padStart(10)} ${pct(api.rps / raw).padStart(8)} ${msText(api.p99).padStart(8)} ${String(api.errors + api.non2xx).padStart(7)} ${String(api.queries ?? '–').padStart(4)} ${kb(api.bytes).padStart(10)}`)
+      console.log(`  ${r.label.padEnd(40)} ${api.rps.toFixed(0).padStart(8)} ${raw.toFixed(0).padStart(10)} ${pct(api.rps / raw).padStart(8)} ${msText(api.p99).padStart(8)} ${String(api.errors + api.non2xx).padStart(7)} ${String(api.queries ?? '–').padStart(5)} ${kb(api.bytes).padStart(10)}`)
     }
     console.log(`  goal: each ≥ 50 % of its raw SQL's throughput (lowest ${pct(worst)}: ${worst >= 0.5 ? 'met' : 'NOT met'}); compare the SQL column with the demo's: it must not grow with the build`)
   }
