@@ -9,7 +9,7 @@ import { knexConfig } from '../knexfile'
 import { archiveSection, filesSection } from './bench-files'
 import { loadSection } from './bench-load'
 import { http, ms, random, RAW_QUERY, rawBoard, RUNS, seedBoard, seedBuild, serverTiming, signIn, summary, type Context, type Section } from './lib/benchKit'
-import type { Lane } from '../shared/utils/lanes'
+import type { Lane } from '#shared/utils/lanes'
 
 // ---------------------------------------------------------------------------------------
 // scoreboard

@@ -1,6 +1,6 @@
 import { createHash, randomBytes } from 'node:crypto'
 import type { Knex } from 'knex'
-import type { Comparator } from '../shared/utils/conformance'
+import type { Comparator } from '#shared/utils/conformance'
 import { insertReading } from '../server/utils/measure/readings'
 import { findRevision, freezeRevision, insertRevision } from '../server/utils/measure/revisions'
 import { findTarget, insertTarget, updateTarget } from '../server/utils/measure/targets'
