@@ -1,4 +1,3 @@
-import { randomBytes } from 'node:crypto'
 import type { H3Event } from 'h3'
 
 // Security headers on every answer, and a strict Content-Security-Policy on every page.
@@ -7,38 +6,9 @@ import type { H3Event } from 'h3'
 // the policy, so those run and no injected script can. Scripts, styles, fonts and everything
 // fetched come from the app itself. Answers that bring their own policy (stored files) keep it.
 
-const NONCE = Symbol('csp nonce')
-
-export function contentSecurityPolicy(nonce: string): string {
-  return [
-    `default-src 'self'`,
-    `script-src 'self' 'nonce-${nonce}'`,
-    // Vue binds style attributes and the build inlines component styles
-    `style-src 'self' 'unsafe-inline'`,
-    `img-src 'self' data: blob:`,
-    `media-src 'self' blob:`,
-    `font-src 'self'`,
-    `connect-src 'self'`,
-    `object-src 'none'`,
-    `base-uri 'self'`,
-    `form-action 'self'`,
-    `frame-ancestors 'none'`,
-  ].join('; ')
-}
-
 function isHttps(event: H3Event): boolean {
   if ((event.node.req.socket as { encrypted?: boolean }).encrypted) return true
   return Boolean(useRuntimeConfig().auth?.trustProxy) && getRequestHeader(event, 'x-forwarded-proto')?.split(',')[0]?.trim() === 'https'
-}
-
-function nonceOf(event: H3Event): string {
-  const context = event.context as Record<symbol, string | undefined>
-  return (context[NONCE] ??= randomBytes(16).toString('base64'))
-}
-
-/** `<script …>` → `<script nonce="…" …>`, for every script tag in a chunk of rendered HTML. */
-export function addNonce(html: string, nonce: string): string {
-  return html.replace(/<script\b(?![^>]*\bnonce=)/gi, `<script nonce="${nonce}"`)
 }
 
 export default defineNitroPlugin((nitroApp) => {
@@ -51,7 +21,7 @@ export default defineNitroPlugin((nitroApp) => {
   })
 
   nitroApp.hooks.hook('render:html', (html, { event }) => {
-    const nonce = nonceOf(event)
+    const nonce = pageNonce(event)
     // not 'body': the app's own markup, where Vue escapes every tag it didn't write (and the scan of
     // a large page cost more than the rest of this hook)
     for (const part of ['head', 'bodyPrepend', 'bodyAppend'] as const) {
@@ -64,7 +34,7 @@ export default defineNitroPlugin((nitroApp) => {
     delete headers['x-powered-by']
     const type = String(headers['content-type'] ?? '')
     if (type.startsWith('text/html') && !getResponseHeader(event, 'content-security-policy')) {
-      headers['content-security-policy'] = contentSecurityPolicy(nonceOf(event))
+      headers['content-security-policy'] = contentSecurityPolicy(`'nonce-${pageNonce(event)}'`)
     }
   })
 

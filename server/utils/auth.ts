@@ -106,6 +106,13 @@ export interface BuildAccess {
   actorLabel: string
   /** the caller, for domain functions */
   actor: Actor
+  /**
+   * The data stamps (data_stamps) of the build's team and of the signed-in person, read in the same
+   * statement as the access: they change whenever anything shown under them does, so an answer
+   * computed at these stamps can be kept and served again while they hold (server/utils/serving/keptAnswers.ts).
+   * Null where the look-up didn't read them.
+   */
+  stamps: { team: string, user: string | null } | null
 }
 
 /**
@@ -117,33 +124,43 @@ export async function requireBuildRole(event: H3Event, buildKey: string, min: Ro
   const bearer = bearerToken(event)
   if (bearer && opts.allowRigToken) {
     const token = await useRigToken(event, bearer)
-    const build = await byIdOrSlug(db('builds').where('builds.id', token.build_id), 'builds', buildKey).first()
-    if (!build) throw createError({ statusCode: 404, message: 'Build not found' })
+    const found = await byIdOrSlug(db('builds').where('builds.id', token.build_id), 'builds', buildKey).first('builds.*', db.raw(TEAM_STAMP)) as (BuildRow & Stamped) | undefined
+    if (!found) throw createError({ statusCode: 404, message: 'Build not found' })
     if (!roleAtLeast('engineer', min)) refuse('engineer', min)
+    const { _stamp, _user_stamp, ...build } = found
     const label = `rig token ${token.name}`
     const actor: Actor = { userId: null, rigTokenId: token.id, name: label, label, role: 'engineer', origin: originOf(event) }
-    return { build, role: 'engineer', user: null, rigTokenId: token.id, actorId: null, actorLabel: label, actor }
+    return { build, role: 'engineer', user: null, rigTokenId: token.id, actorId: null, actorLabel: label, actor, stamps: stampsOf(_stamp, null) }
   }
   const { user, row } = event.context.user ? { user: event.context.user as SessionUser, row: await memberBuild(db, (event.context.user as SessionUser).id, buildKey) } : await userAndBuild(event, buildKey)
   if (!row) throw createError({ statusCode: 404, message: 'Build not found' })
-  const { member_role: role, ...build } = row
+  const { member_role: role, _stamp, _user_stamp, ...build } = row
   if (!roleAtLeast(role, min)) refuse(role, min)
-  return { build, role, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role) }
+  return { build, role, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role), stamps: stampsOf(_stamp, _user_stamp) }
 }
 
-type MemberBuild = BuildRow & { member_role: Role }
+interface Stamped { _stamp?: string | null, _user_stamp?: string | null }
+type MemberBuild = BuildRow & { member_role: Role } & Stamped
+
+// a team that has no stamp row yet has never been written since stamps began: '0' stands for it
+const TEAM_STAMP = `(SELECT n FROM data_stamps WHERE scope = builds.team_id) AS _stamp`
+
+function stampsOf(team: string | null | undefined, user: string | null | undefined): BuildAccess['stamps'] {
+  return { team: team ?? '0', user: user ?? null }
+}
 
 /** The build (by id or slug) if `userId` is a member of its team, with their role. */
 async function memberBuild(db: Knex, userId: string, buildKey: string): Promise<MemberBuild | undefined> {
   return await byIdOrSlug(db('builds')
     .join('memberships', 'memberships.team_id', 'builds.team_id')
     .where('memberships.user_id', userId), 'builds', buildKey)
-    .first('builds.*', 'memberships.role as member_role') as MemberBuild | undefined
+    .first('builds.*', 'memberships.role as member_role', db.raw(TEAM_STAMP), db.raw('(SELECT n FROM data_stamps WHERE scope = ?) AS _user_stamp', [userId])) as MemberBuild | undefined
 }
 
 // the session's check and the build with the member's role, in one round trip: every build route starts here
 const USER_AND_BUILD = `SELECT u.id AS _user_id, u.name AS _user_name, u.email AS _user_email, u.session_version AS _session_version,
-  EXISTS (SELECT 1 FROM revoked_sessions WHERE sid = $2) AS _revoked, x.*
+  EXISTS (SELECT 1 FROM revoked_sessions WHERE sid = $2) AS _revoked, x.*,
+  (SELECT n FROM data_stamps WHERE scope = x.team_id) AS _stamp, (SELECT n FROM data_stamps WHERE scope = u.id) AS _user_stamp
   FROM users u
   LEFT JOIN LATERAL (SELECT b.*, m.role AS member_role FROM builds b JOIN memberships m ON m.team_id = b.team_id AND m.user_id = u.id
     WHERE b.id = $3::uuid OR b.slug = $4 LIMIT 1) x ON true
@@ -262,7 +279,7 @@ export async function requireFindingRole(event: H3Event, min: Role, opts: { allo
   const { build, member_role: role, ...finding } = row
   // outside the team or below the role: the usual 404 or 403, worded by requireBuildRole
   if (!roleAtLeast(role, min)) return { ...await asFindingNotFound(requireBuildRole(event, build.id, min)), findingId: id, finding }
-  return { build, role: role!, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role!), findingId: id, finding }
+  return { build, role: role!, user, rigTokenId: null, actorId: user.id, actorLabel: user.email, actor: userActor(event, user, role!), findingId: id, finding, stamps: null }
 }
 
 /**

@@ -1,4 +1,5 @@
 export default defineEventHandler(async (event) => {
-  const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
-  return await buildBoard(useDb(), build, role)
+  const access = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
+  const { build, role } = access
+  return await keptAnswer(event, access, () => buildBoard(useDb(), build, role))
 })

@@ -1,6 +1,7 @@
 import type { OpenFindingsByTarget } from '#shared/types/findings'
 
 export default defineEventHandler(async (event): Promise<OpenFindingsByTarget> => {
-  const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
-  return { canFile: role !== 'reviewer', byTarget: await openFindingsByTarget(useDb(), build.id) }
+  const access = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
+  const { build, role } = access
+  return await keptAnswer(event, access, async () => ({ canFile: role !== 'reviewer', byTarget: await openFindingsByTarget(useDb(), build.id) }))
 })

@@ -1,4 +1,5 @@
 export default defineEventHandler(async (event) => {
-  const { build } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
-  return await listRevisions(useDb(), build.id)
+  const access = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
+  const { build } = access
+  return await keptAnswer(event, access, () => listRevisions(useDb(), build.id))
 })

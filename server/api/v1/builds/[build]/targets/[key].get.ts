@@ -1,4 +1,5 @@
 export default defineEventHandler(async (event) => {
-  const { build, role } = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
-  return await buildTargetDetail(useDb(), build, role, textParam(event, 'key'))
+  const access = await requireBuildRole(event, getRouterParam(event, 'build')!, 'reviewer', { allowRigToken: true })
+  const { build, role } = access
+  return await keptAnswer(event, access, () => buildTargetDetail(useDb(), build, role, textParam(event, 'key')))
 })

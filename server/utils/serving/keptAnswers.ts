@@ -1,0 +1,42 @@
+import type { H3Event } from 'h3'
+import { LRUCache } from 'lru-cache'
+import type { BuildAccess } from '../auth'
+
+// Answers kept while the data behind them holds. A build's reads (its scoreboard, findings, a
+// target's history …) are computed from the build's team's data only, and the team's data stamp
+// (migrations/…_create-data-stamps.ts) changes in the same commit as any of that data. So an answer
+// computed after reading stamp S is still the answer while the stamp reads S: requireBuildRole
+// reads the stamp in the same statement as the caller's access, and a kept answer costs that one
+// round trip. The stamp is read before the data, so a kept answer is never older than its stamp.
+//
+// Kept per process, bounded by size (least recently used first out); keys hold the stamp, the
+// caller's role (some answers show what a role may do) and the request's path with its query.
+// Callers asking for the same answer at once share one computation.
+
+const MAX_BYTES = 128 * 1024 * 1024
+
+const answers = new LRUCache<string, Buffer>({ maxSize: MAX_BYTES, sizeCalculation: b => Math.max(1, b.length) })
+const computing = new Map<string, Promise<Buffer>>()
+
+/**
+ * The JSON answer `compute` gives, kept for the same caller role, path and team data stamp. The
+ * body goes out as serialised JSON (typed as `T` for the route's callers, which parse it back).
+ */
+export async function keptAnswer<T>(event: H3Event, access: Pick<BuildAccess, 'build' | 'role' | 'stamps'>, compute: () => Promise<T>): Promise<T> {
+  if (!access.stamps) return await compute()
+  const key = `${access.stamps.team}|${access.build.id}|${access.role}|${event.path}`
+  let body = answers.get(key)
+  setResponseHeader(event, 'Ratchet-Cache', body ? 'hit' : 'miss')
+  if (!body) {
+    let pending = computing.get(key)
+    if (!pending) {
+      pending = compute().then(value => Buffer.from(JSON.stringify(value)))
+      computing.set(key, pending)
+      void pending.then(b => answers.set(key, b), () => {}).finally(() => computing.delete(key))
+    }
+    body = await pending
+  }
+  setResponseHeader(event, 'content-type', 'application/json')
+  // h3 sends a Buffer as it is: the JSON text, serialised once
+  return body as unknown as T
+}
