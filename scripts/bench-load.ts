@@ -46,9 +46,11 @@ async function timed(cookie: string, path: string): Promise<Timed> {
 async function blast(db: Knex, cookie: string, path: string, seconds = SECONDS): Promise<Blast> {
   await db.raw(`UPDATE data_stamps SET n = nextval('data_stamps_seq')`)
   const cold = await timed(cookie, path)
+  // a page is asked for as a browser asks: HTML, compressed if the server will
+  const headers = path.startsWith('/api/') ? { cookie } : { cookie, 'accept': 'text/html', 'accept-encoding': 'gzip, deflate, br' }
   // warm-up: JIT, caches, the pool's connections
-  await autocannon({ url: `${BASE_URL}${path}`, connections: CONNECTIONS, duration: 1, headers: { cookie } })
-  const r = await autocannon({ url: `${BASE_URL}${path}`, connections: CONNECTIONS, duration: seconds, headers: { cookie } })
+  await autocannon({ url: `${BASE_URL}${path}`, connections: CONNECTIONS, duration: 1, headers })
+  const r = await autocannon({ url: `${BASE_URL}${path}`, connections: CONNECTIONS, duration: seconds, headers })
   const kept = await timed(cookie, path)
   return { rps: r.requests.total / seconds, p50: r.latency.p50, p99: r.latency.p99, errors: r.errors + r.timeouts, non2xx: r.non2xx, cold, kept }
 }
@@ -85,7 +87,8 @@ function printTable(rows: { label: string, b: Blast }[], floor: number) {
   for (const { label, b } of rows) {
     console.log(`  ${label.padEnd(52)} ${b.rps.toFixed(0).padStart(8)} ${pct(b.rps / floor).padStart(9)} ${msText(b.p50).padStart(7)} ${msText(b.p99).padStart(8)} ${String(b.errors + b.non2xx).padStart(7)} ${trips(b).padStart(6)} ${coldMs(b).padStart(8)} ${kb(b.kept.bytes).padStart(9)}`)
   }
-  console.log(`  trips: SQL round trips of the first request after a change / of a later one (Server-Timing); cold: that first request's time in the app`)
+  console.log(`  trips: SQL round trips of the first request after a change / of a later one (Server-Timing); cold: that first request's time in the app;`)
+  console.log(`  body: as decoded (pages are asked for as a browser does, accepting gzip)`)
 }
 
 /** The JavaScript and CSS the build page loads in Chromium, each file gzip'd as served. */

@@ -42,6 +42,20 @@ describe('kept answers', () => {
     expect(second.body).toEqual(first.body)
   })
 
+  it('a kept answer goes out gzip’d to a client that accepts it, the same JSON', async () => {
+    const url = `${w.engineer.client.base}/api/v1/builds/${slug}/scoreboard`
+    const plain = await fetch(url, { headers: { 'cookie': w.engineer.client.cookie, 'accept-encoding': 'identity' } })
+    const packed = await fetch(url, { headers: { 'cookie': w.engineer.client.cookie, 'accept-encoding': 'gzip' } })
+    const refused = await fetch(url, { headers: { 'cookie': w.engineer.client.cookie, 'accept-encoding': 'gzip;q=0, identity' } })
+    expect([plain.status, packed.status, refused.status]).toEqual([200, 200, 200])
+    expect(plain.headers.get('content-encoding')).toBeNull()
+    expect(refused.headers.get('content-encoding')).toBeNull()
+    expect(packed.headers.get('content-encoding')).toBe('gzip')
+    expect(packed.headers.get('vary')).toMatch(/accept-encoding/i)
+    expect(await packed.json()).toEqual(await plain.json())
+    expect((await refused.json()).build.slug).toBe(slug)
+  })
+
   it('a write through the API shows on the next read', async () => {
     const before = await w.engineer.client.get(`/api/v1/builds/${slug}/targets/${key}`)
     expect(before.body.history.find((h: { revision: string }) => h.revision === 'R2')?.n ?? 0).toBe(0)

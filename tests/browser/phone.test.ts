@@ -181,7 +181,10 @@ describe('phone layouts, refusals and the history chart in Chromium', () => {
   it('Team settings on a phone: every member\'s Role in view and changeable by the Owner', async () => {
     const { context, page } = await pageAt(browser, w.owner, PHONE, 'dark')
     await goto(page, `/teams/${w.team.slug}/settings`)
-    await page.getByTestId('members-panel').waitFor()
+    // this wait once timed out in a full run (never alone): should it again, say what the page showed
+    await page.getByTestId('members-panel').waitFor().catch(async (err: Error) => {
+      throw new Error(`${err.message}\nthe page at ${page.url()} showed: ${(await page.locator('body').innerText()).slice(0, 600)}`)
+    })
     expect(await sideways(page)).toBe(0)
     for (const who of [w.owner, w.engineer, w.reviewer]) {
       const role = page.locator(`[data-testid="member-${who.email}"] [data-testid="role-select"]`)
