@@ -23,7 +23,8 @@ const BUILD_PAGE = /^\/builds\/([^/?#]+)(?:[/?#]|$)/
 interface KeptPage { body: Buffer, gzip: Buffer, csp: string, type: string }
 
 const pages = new LRUCache<string, KeptPage>({ maxSize: MAX_BYTES, sizeCalculation: p => p.body.length + p.gzip.length, ttl: PAGE_TTL_MS })
-const rendering = new Map<string, { done: Promise<KeptPage | null>, settle: (page: KeptPage | null) => void }>()
+interface Rendering { done: Promise<KeptPage | null>, settle: (page: KeptPage | null) => void }
+const rendering = new Map<string, Rendering>()
 
 const KEY = Symbol('kept page key')
 type Context = Record<symbol, string | undefined>
@@ -55,17 +56,19 @@ export async function keptPage(event: H3Event): Promise<Buffer | undefined> {
   }
   let settle!: (page: KeptPage | null) => void
   const done = new Promise<KeptPage | null>((resolve) => { settle = resolve })
-  rendering.set(key, { done, settle })
+  const mine = { done, settle }
+  rendering.set(key, mine)
   ;(event.context as Context)[KEY] = key
   setResponseHeader(event, 'Ratchet-Cache', 'miss')
-  // whatever becomes of the rendering, those waiting for it go on
-  event.node.res.once('close', () => finish(key, null))
+  // whatever becomes of the rendering, those waiting for it go on (and a later rendering of the
+  // same page, begun since, is not theirs to end)
+  event.node.res.once('close', () => finish(key, null, mine))
   return undefined
 }
 
-function finish(key: string, page: KeptPage | null) {
+function finish(key: string, page: KeptPage | null, only?: Rendering) {
   const waiting = rendering.get(key)
-  if (!waiting) return
+  if (!waiting || (only && waiting !== only)) return
   rendering.delete(key)
   if (page) pages.set(key, page)
   waiting.settle(page)
