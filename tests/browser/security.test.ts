@@ -1,7 +1,7 @@
 import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { closeTestDb, type World } from '../support/api'
-import { goto, launchWithWorld, newContext, screenshot, signIn } from '../support/browser'
+import { goto, launchWithWorld, newContext, screenshot, signIn, waitForHydration } from '../support/browser'
 import { upload } from '../support/files'
 import { addReading, newRevision, newTarget } from '../support/measure'
 
@@ -84,6 +84,40 @@ describe('every page under the Content-Security-Policy, in Chromium', () => {
     expect(seen).toEqual([])
     await context.close()
   }, 180_000)
+
+  it('a kept build page, served again under a policy of its scripts\' digests, runs them and refuses an injected one', async () => {
+    const context = await newContext(browser)
+    await signIn(context, w.owner)
+    const page = await context.newPage()
+    const seen = await watchViolations(page)
+    const b = `/builds/${w.build.slug}`
+    for (const path of [b, `${b}/targets/${at.target}`, `${b}/revisions/R1`]) {
+      // the first visits settle the cookies (the theme); a page is kept per cookies, so it is served kept from then on
+      let headers: Record<string, string> = {}
+      for (let visit = 0; visit < 3 && headers['ratchet-cache'] !== 'hit'; visit++) {
+        headers = (await page.goto(path, { waitUntil: 'networkidle' }))!.headers()
+      }
+      expect(headers['ratchet-cache'], path).toBe('hit')
+      expect(headers['content-security-policy'], path).toMatch(/script-src 'self'( 'sha256-[A-Za-z0-9+/=]+')+(;|$)/)
+      expect(headers['content-security-policy'], path).not.toContain('nonce-')
+      await waitForHydration(page)
+      expect(await page.locator('#__nuxt').count(), path).toBe(1)
+    }
+    await goto(page, b)
+    await page.getByTestId('tab-findings').click()
+    await page.waitForURL(/tab=findings/)
+    await page.getByTestId('findings-board').waitFor()
+    expect(seen).toEqual([])
+    const ran = await page.evaluate(() => {
+      const s = document.createElement('script')
+      s.textContent = 'window.__injected = true'
+      document.head.appendChild(s)
+      return (window as unknown as { __injected?: boolean }).__injected === true
+    })
+    expect(ran).toBe(false)
+    await expect.poll(() => seen.length).toBeGreaterThan(0)
+    await context.close()
+  }, 120_000)
 
   it('an injected inline script is refused (the policy is enforced, not just sent)', async () => {
     const context = await newContext(browser)
