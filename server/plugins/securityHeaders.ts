@@ -2,8 +2,9 @@ import type { H3Event } from 'h3'
 
 // Security headers on every answer, and a strict Content-Security-Policy on every page.
 // Server rendering writes a few inline scripts (the runtime config, the theme set before the
-// first paint); each page gets a fresh nonce, written into each of its <script> tags and into
-// the policy, so those run and no injected script can. Scripts, styles, fonts and everything
+// first paint); each rendered page gets a fresh nonce, written into each of its <script> tags and
+// into the policy, so those run and no injected script can (a kept page, served again, names its
+// scripts by digest instead: server/utils/serving/csp.ts). Scripts, styles, fonts and everything
 // fetched come from the app itself. Answers that bring their own policy (stored files) keep it.
 
 function isHttps(event: H3Event): boolean {
