@@ -2,7 +2,7 @@ import { fileURLToPath } from 'node:url'
 import { defineVitestProject } from '@nuxt/test-utils/config'
 import { defineConfig } from 'vitest/config'
 
-// client helpers in utils/ import shared code as Nuxt does
+// the repository's shared/ code is imported as #shared/…, as in the app (and package.json's imports for scripts)
 const shared = fileURLToPath(new URL('./shared', import.meta.url))
 
 // Setting up the `nuxt` project loads Nuxt (seconds): skip it when the run asks only for others.
@@ -40,6 +40,7 @@ export default defineConfig({
       },
       ...nuxtProject,
       {
+        resolve: { alias: { '#shared': shared } },
         test: {
           name: 'api',
           include: ['tests/api/**/*.test.ts'],
@@ -51,6 +52,7 @@ export default defineConfig({
         },
       },
       {
+        resolve: { alias: { '#shared': shared } },
         test: {
           name: 'browser',
           include: ['tests/browser/**/*.test.ts'],

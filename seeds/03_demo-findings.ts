@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
-import type { FixState, Lane, Severity } from '../shared/utils/lanes'
-import type { Role } from '../shared/utils/roles'
+import type { FixState, Lane, Severity } from '#shared/utils/lanes'
+import type { Role } from '#shared/utils/roles'
 import type { Actor } from '../server/utils/audit'
 import { addComment } from '../server/utils/findings/detail'
 import { createFinding, lockFinding } from '../server/utils/findings/edit'

@@ -1,10 +1,10 @@
 import type { Knex } from 'knex'
-import type { FindingEventKind } from '../../shared/types/findings'
-import type { CellDecision } from '../../shared/utils/cellStats'
-import type { Comparator } from '../../shared/utils/conformance'
-import type { FixState, Lane, Severity } from '../../shared/utils/lanes'
-import type { Role } from '../../shared/utils/roles'
-import type { Quantity } from '../../shared/utils/units'
+import type { FindingEventKind } from '#shared/types/findings'
+import type { CellDecision } from '#shared/utils/cellStats'
+import type { Comparator } from '#shared/utils/conformance'
+import type { FixState, Lane, Severity } from '#shared/utils/lanes'
+import type { Role } from '#shared/utils/roles'
+import type { Quantity } from '#shared/utils/units'
 
 // Every table as a query returns its rows, declared once (the migrations make them). Knex reads
 // this map: `db('readings').where(…).first()` is a ReadingRow, with no cast. Aliased names

@@ -1,5 +1,5 @@
 import type { H3Event } from 'h3'
-import type { Role } from '../../shared/utils/roles'
+import type { Role } from '#shared/utils/roles'
 import type { Db } from './db'
 
 // Who acts and the audit log. Domain functions get an Actor (never the request); handlers make

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { isValidRank } from '../../shared/utils/rank'
+import { isValidRank } from '#shared/utils/rank'
 import { closeTestDb, makeWorld, testDb, type Client, type World } from '../support/api'
 
 // The order of the board survives any sequence of moves: the server's order equals what a plain

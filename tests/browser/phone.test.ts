@@ -180,10 +180,16 @@ describe('phone layouts, refusals and the history chart in Chromium', () => {
 
   it('Team settings on a phone: every member\'s Role in view and changeable by the Owner', async () => {
     const { context, page } = await pageAt(browser, w.owner, PHONE, 'dark')
+    // this page has shown a 401 in two full runs (never alone, never logged by the server): should it
+    // again, say what the page showed and which requests were refused, with their words
+    const refused: string[] = []
+    page.on('response', (res) => {
+      if (res.status() >= 400) void res.text().then(body => refused.push(`${res.request().method()} ${res.url()} ${res.status()} ${body.slice(0, 200)}`), () => {})
+    })
     await goto(page, `/teams/${w.team.slug}/settings`)
-    // this wait once timed out in a full run (never alone): should it again, say what the page showed
     await page.getByTestId('members-panel').waitFor().catch(async (err: Error) => {
-      throw new Error(`${err.message}\nthe page at ${page.url()} showed: ${(await page.locator('body').innerText()).slice(0, 600)}`)
+      const cookies = (await context.cookies()).map(c => `${c.name} (${c.value.length} chars)`).join(', ')
+      throw new Error(`${err.message}\nthe page at ${page.url()} showed: ${(await page.locator('body').innerText()).slice(0, 400)}\nrefused: ${refused.join('\n') || 'none'}\ncookies: ${cookies}`)
     })
     expect(await sideways(page)).toBe(0)
     for (const who of [w.owner, w.engineer, w.reviewer]) {

@@ -21,6 +21,16 @@ async function watchViolations(page: Page): Promise<string[]> {
   return seen
 }
 
+/** Adds an inline script to the page, as an injection would; whether it ran. */
+async function injectScript(page: Page): Promise<boolean> {
+  return await page.evaluate(() => {
+    const s = document.createElement('script')
+    s.textContent = 'window.__injected = true'
+    document.head.appendChild(s)
+    return (window as unknown as { __injected?: boolean }).__injected === true
+  })
+}
+
 describe('every page under the Content-Security-Policy, in Chromium', () => {
   let browser: Browser
   let w: World
@@ -108,12 +118,7 @@ describe('every page under the Content-Security-Policy, in Chromium', () => {
     await page.waitForURL(/tab=findings/)
     await page.getByTestId('findings-board').waitFor()
     expect(seen).toEqual([])
-    const ran = await page.evaluate(() => {
-      const s = document.createElement('script')
-      s.textContent = 'window.__injected = true'
-      document.head.appendChild(s)
-      return (window as unknown as { __injected?: boolean }).__injected === true
-    })
+    const ran = await injectScript(page)
     expect(ran).toBe(false)
     await expect.poll(() => seen.length).toBeGreaterThan(0)
     await context.close()
@@ -124,12 +129,7 @@ describe('every page under the Content-Security-Policy, in Chromium', () => {
     const page = await context.newPage()
     const seen = await watchViolations(page)
     await goto(page, '/login')
-    const ran = await page.evaluate(() => {
-      const s = document.createElement('script')
-      s.textContent = 'window.__injected = true'
-      document.head.appendChild(s)
-      return (window as unknown as { __injected?: boolean }).__injected === true
-    })
+    const ran = await injectScript(page)
     expect(ran).toBe(false)
     await expect.poll(() => seen.length).toBeGreaterThan(0)
     expect(seen.join('\n')).toMatch(/script-src/)

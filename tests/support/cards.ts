@@ -1,4 +1,4 @@
-import type { FindingCard } from '../../shared/types/findings'
+import type { FindingCard } from '#shared/types/findings'
 
 let serial = 0
 

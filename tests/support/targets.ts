@@ -1,4 +1,4 @@
-import type { HistoryEntry, ScoreTarget } from '../../shared/types/api'
+import type { HistoryEntry, ScoreTarget } from '#shared/types/api'
 
 /** One revision's pooled statistics; pass what the test is about. */
 export function makeEntry(overrides: Partial<HistoryEntry> = {}): HistoryEntry {

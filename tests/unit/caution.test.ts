@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { currentCaution, hazardOf, projectileCaution, rimSpeedCaution } from '../../shared/utils/caution'
-import { designCautions, type CautionTarget } from '../../shared/utils/designCautions'
+import { currentCaution, hazardOf, projectileCaution, rimSpeedCaution } from '#shared/utils/caution'
+import { designCautions, type CautionTarget } from '#shared/utils/designCautions'
 
 // The numbers are closed forms worked by hand: K = ½mv² (OpenStax University Physics Vol. 1,
 // eq. 7.6), v = ωr (ibid., eq. 10.4), 1 rpm = 2π/60 rad/s (NIST SP 811 B.8 via the revolution).

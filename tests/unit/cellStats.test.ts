@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest'
-import { hazardOf } from '../../shared/utils/caution'
-import { cellInUnit, decideCells, poolCell, tidyNumber, type SiRule } from '../../shared/utils/cellStats'
-import { pooledStats } from '../../shared/utils/readingStats'
-import { targetRuleProblems } from '../../shared/utils/targetSchemas'
-import { diffToSI, fromSI, parseUnit, toSI } from '../../shared/utils/units'
+import { hazardOf } from '#shared/utils/caution'
+import { cellInUnit, decideCells, poolCell, tidyNumber, type SiRule } from '#shared/utils/cellStats'
+import { pooledStats } from '#shared/utils/readingStats'
+import { targetRuleProblems } from '#shared/utils/targetSchemas'
+import { diffToSI, fromSI, parseUnit, toSI } from '#shared/utils/units'
 
 describe('poolCell', () => {
   it('is pooledStats of the readings, with the number of readings pooled', () => {

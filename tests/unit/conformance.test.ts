@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { marginOf, movementOf, statusOf, type TargetRule } from '../../shared/utils/conformance'
-import { computeStats } from '../../shared/utils/readingStats'
+import { marginOf, movementOf, statusOf, type TargetRule } from '#shared/utils/conformance'
+import { computeStats } from '#shared/utils/readingStats'
 
 // The rules are docs/computation.md §Status and §Movement between revisions (a guarded
 // acceptance rule in the sense of ILAC-G8 and ISO 14253-1: the 95 % interval, not the mean, has

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { MAX_STATED_ROWS, parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvRow } from '../../shared/utils/csvReadings'
+import { MAX_STATED_ROWS, parseNumberCell, parseTimeCell, planCsvImport, problemsMessage, type CsvRow } from '#shared/utils/csvReadings'
 
 const rows = (...lines: string[][]): CsvRow[] => lines.map((cells, i) => ({ line: i + 2, cells }))
 

@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest'
 import {
   assertNoCycle, checkFormula, evaluateDerived, findCycle, FormulaError, parseFormula,
-} from '../../shared/utils/derived'
-import type { FormulaErrorCode } from '../../shared/utils/derived'
-import { diffToSI, fromSI, toSI } from '../../shared/utils/units'
+} from '#shared/utils/derived'
+import type { FormulaErrorCode } from '#shared/utils/derived'
+import { diffToSI, fromSI, toSI } from '#shared/utils/units'
 
 function formulaError(run: () => unknown): FormulaError {
   try {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
-import type { SiRule } from '../../shared/utils/cellStats'
-import { derivedNuEff, evaluateDerivedTargets, evaluatePoint, type DerivedPoint, type InputCell, type MeasuredSeries } from '../../shared/utils/derivedCells'
-import { Z_975 } from '../../shared/utils/readingStats'
+import type { SiRule } from '#shared/utils/cellStats'
+import { derivedNuEff, evaluateDerivedTargets, evaluatePoint, type DerivedPoint, type InputCell, type MeasuredSeries } from '#shared/utils/derivedCells'
+import { Z_975 } from '#shared/utils/readingStats'
 
 const atLeast = (threshold: number): SiRule => ({ comparator: 'atLeast', threshold, thresholdHigh: null, noiseBand: null })
 const value = (p: DerivedPoint | null | undefined) => {

@@ -1,11 +1,11 @@
 import jStat from 'jstat'
 import { describe, expect, it } from 'vitest'
-import type { FormulaError } from '../../shared/utils/derived'
+import type { FormulaError } from '#shared/utils/derived'
 import {
   bisect, calibrate, calibratedPrediction, calibrationNu, checkModel, DesignError, effectiveParameters, intervalHalfWidth, parameterKeyOf, predict,
   ratioOf, rootNear, samplesNeeded, sensitivityOf, solveFor, type DesignParameter,
-} from '../../shared/utils/design'
-import { tQuantile } from '../../shared/utils/readingStats'
+} from '#shared/utils/design'
+import { tQuantile } from '#shared/utils/readingStats'
 
 const param = (key: string, value: number | string, unit: string | null = null, tolerance: number | null = null): DesignParameter =>
   ({ key, name: key, value, unit, tolerance })

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
-import { FormulaError, evaluateDerived } from '../../shared/utils/derived'
-import { DESIGN_TEMPLATES, checkTemplate, fillTemplate, findTemplate } from '../../shared/utils/designTemplates'
-import { fromSI, toSI } from '../../shared/utils/units'
+import { FormulaError, evaluateDerived } from '#shared/utils/derived'
+import { DESIGN_TEMPLATES, checkTemplate, fillTemplate, findTemplate } from '#shared/utils/designTemplates'
+import { fromSI, toSI } from '#shared/utils/units'
 
 // Each check is a closed form worked by hand from the template's own equation (its source is
 // named in the template); unit factors from NIST SP 811 (1 rpm = 2π/60 rad/s, 1 mAh = 3.6 C).

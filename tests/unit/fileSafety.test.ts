@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
-import { etagMatches, parseRange } from '../../shared/utils/byteRanges'
-import { deliveryOf, kindOf, sniffTextType } from '../../shared/utils/contentTypes'
-import { contentDisposition, formatBytes, sanitizeFileName } from '../../shared/utils/fileNames'
+import { etagMatches, parseRange } from '#shared/utils/byteRanges'
+import { deliveryOf, kindOf, sniffTextType } from '#shared/utils/contentTypes'
+import { contentDisposition, formatBytes, sanitizeFileName } from '#shared/utils/fileNames'
 
 describe('sanitizeFileName', () => {
   it.each([

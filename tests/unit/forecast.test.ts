@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { forecast, forecastOfHistory, labelAt, linearFit } from '../../shared/utils/forecast'
+import { forecast, forecastOfHistory, labelAt, linearFit } from '#shared/utils/forecast'
 import { norrisCertified, norrisData } from '../fixtures/strd-norris'
 
 /** Agreement to `digits` significant digits (log relative error, as the StRD reports use). */

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { LANES, LANE_LABELS, boardOrder, isOpenLane, laneRefusal, neighbourLane, verificationOf, type VerificationFacts } from '../../shared/utils/lanes'
+import { LANES, LANE_LABELS, boardOrder, isOpenLane, laneRefusal, neighbourLane, verificationOf, type VerificationFacts } from '#shared/utils/lanes'
 
 // The rules of the board, from the product's definitions: a finding enters Retest only with a
 // landed fix, and Closed only with a reading on a later revision that shows each target it hurts

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { compareCells, rankMovements } from '../../shared/utils/movers'
+import { compareCells, rankMovements } from '#shared/utils/movers'
 
 // Sample sets of the worked examples of the Wikipedia article "Welch's t-test" (section
 // Examples), as published by Rosetta Code, task "Welch's t-test": example 1 (A1 vs A2), R's

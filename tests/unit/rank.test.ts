@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { FIRST_RANK, RANK_DIGITS, compareRanks, isValidRank, rankBetween, spreadRanks } from '../../shared/utils/rank'
+import { FIRST_RANK, RANK_DIGITS, compareRanks, isValidRank, rankBetween, spreadRanks } from '#shared/utils/rank'
 
 // Ranks order cards by plain byte comparison; every new rank must fall strictly between its
 // neighbours and be well formed, whatever sequence of moves made the neighbours.

@@ -3,7 +3,7 @@ import { all, create } from 'mathjs'
 import { describe, expect, it } from 'vitest'
 import {
   MAX_SAMPLES, Z_975, computeStats, pooledStats, tQuantile, welchSatterthwaite, welchTest,
-} from '../../shared/utils/readingStats'
+} from '#shared/utils/readingStats'
 import { univariate, declaredN } from '../fixtures/strd/univariate'
 import { zarr13 } from '../fixtures/strd/zarr13'
 

@@ -1,11 +1,11 @@
 import jStat from 'jstat'
 import { all, create } from 'mathjs'
 import { describe, expect, it } from 'vitest'
-import { fieldErrors } from '../../shared/utils/accountSchemas'
-import { decideCells, poolCell, type SiRule } from '../../shared/utils/cellStats'
-import { movementOf } from '../../shared/utils/conformance'
-import { ReadingBody, isStatedBody } from '../../shared/utils/readingSchemas'
-import { StatsOverflowError, Z_975, combineResults, pooledStats, statedStats, statedTest, twoSidedP, welchSatterthwaite } from '../../shared/utils/readingStats'
+import { fieldErrors } from '#shared/utils/accountSchemas'
+import { decideCells, poolCell, type SiRule } from '#shared/utils/cellStats'
+import { movementOf } from '#shared/utils/conformance'
+import { ReadingBody, isStatedBody } from '#shared/utils/readingSchemas'
+import { StatsOverflowError, Z_975, combineResults, pooledStats, statedStats, statedTest, twoSidedP, welchSatterthwaite } from '#shared/utils/readingStats'
 
 /** A mathjs instance of its own: a second, independent arithmetic for the weighted mean. */
 const math = create(all!, {})

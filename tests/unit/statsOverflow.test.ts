@@ -1,11 +1,11 @@
 import { describe, expect, it } from 'vitest'
-import { cellStatus, decideCells, poolCell, type SiRule } from '../../shared/utils/cellStats'
-import { movementOf } from '../../shared/utils/conformance'
-import { evaluatePoint } from '../../shared/utils/derivedCells'
-import { forecast, linearFit } from '../../shared/utils/forecast'
-import { compareCells } from '../../shared/utils/movers'
-import { StatsOverflowError, computeStats, pooledStats, welchSatterthwaite, welchTest } from '../../shared/utils/readingStats'
-import { parseUnit, toSI } from '../../shared/utils/units'
+import { cellStatus, decideCells, poolCell, type SiRule } from '#shared/utils/cellStats'
+import { movementOf } from '#shared/utils/conformance'
+import { evaluatePoint } from '#shared/utils/derivedCells'
+import { forecast, linearFit } from '#shared/utils/forecast'
+import { compareCells } from '#shared/utils/movers'
+import { StatsOverflowError, computeStats, pooledStats, welchSatterthwaite, welchTest } from '#shared/utils/readingStats'
+import { parseUnit, toSI } from '#shared/utils/units'
 
 // Finite inputs whose statistics leave IEEE 754 binary64: the largest finite double is
 // 1.7976931348623157e308 (IEEE 754-2008 §3.6, binary64: emax = 1023; ECMA-262 Number.MAX_VALUE),

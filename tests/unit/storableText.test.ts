@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { findUnstorableText, unstorableReason } from '../../shared/utils/storableText'
+import { findUnstorableText, unstorableReason } from '#shared/utils/storableText'
 
 // PostgreSQL: "The character with the code zero cannot be in a string constant" (text) and
 // jsonb rejects \u0000 (PostgreSQL docs, 8.14 JSON Types); a lone surrogate is not a Unicode

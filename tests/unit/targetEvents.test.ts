@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { targetTransition, type TargetState } from '../../shared/utils/targetEvents'
+import { targetTransition, type TargetState } from '#shared/utils/targetEvents'
 
 // The rules are docs/computation.md §Reviewer events and digests (no outside source: Ratchet's own rules).
 const s = (status: TargetState['status'], revisionId = 'R2', movement: TargetState['movement'] = null, real: boolean | null = null): TargetState =>

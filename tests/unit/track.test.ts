@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { StatsOverflowError } from '../../shared/utils/readingStats'
-import { TrackError, fitTrack, pixelBudget } from '../../shared/utils/track'
+import { StatsOverflowError } from '#shared/utils/readingStats'
+import { TrackError, fitTrack, pixelBudget } from '#shared/utils/track'
 
 // NIST Statistical Reference Datasets, Linear Least Squares Regression, "Norris" (lower level of
 // difficulty): 36 observations of y against x, with certified values

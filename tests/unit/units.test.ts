@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import {
   QUANTITY_LABELS, SI_UNIT, UnitError, assertSameQuantity, conversionText, diffFromSI, diffToSI, fromSI, listUnits,
   math, parseUnit, quantityLabel, siUnitOf, toSI, unitForMath, type Quantity,
-} from '../../shared/utils/units'
+} from '#shared/utils/units'
 
 function expectRelative(actual: number, expected: number, tolerance: number) {
   const rel = Math.abs(actual - expected) / Math.abs(expected)

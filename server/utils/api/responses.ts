@@ -1,16 +1,16 @@
 import { z } from 'zod'
-import type { CsvImported, CsvPreview, FileCreated, FileList } from '../../../shared/types/files'
-import type { BoardData, CommentView, FindingDetail, FindingSummary, FixView, OpenFindingsByTarget } from '../../../shared/types/findings'
+import type { CsvImported, CsvPreview, FileCreated, FileList } from '#shared/types/files'
+import type { BoardData, CommentView, FindingDetail, FindingSummary, FixView, OpenFindingsByTarget } from '#shared/types/findings'
 import type {
   Comparison, HistoryEntry, ReadingCreated, RevisionDetail, RevisionView, SamplePlan, Scoreboard, SolveResult, TargetDesign, TargetDetail, TargetView,
-} from '../../../shared/types/api'
-import type { ForecastView } from '../../../shared/utils/forecast'
-import { FILE_KINDS } from '../../../shared/utils/contentTypes'
+} from '#shared/types/api'
+import type { ForecastView } from '#shared/utils/forecast'
+import { FILE_KINDS } from '#shared/utils/contentTypes'
 import type { buildView } from '../measure/scoreboard'
-import { FREQUENCY_VALUES } from '../../../shared/utils/digestSchemas'
-import { FIX_STATES, LANES, SEVERITIES } from '../../../shared/utils/lanes'
-import { ROLES } from '../../../shared/utils/roles'
-import { COMPARATORS } from '../../../shared/utils/targetSchemas'
+import { FREQUENCY_VALUES } from '#shared/utils/digestSchemas'
+import { FIX_STATES, LANES, SEVERITIES } from '#shared/utils/lanes'
+import { ROLES } from '#shared/utils/roles'
+import { COMPARATORS } from '#shared/utils/targetSchemas'
 
 // The answers of the documented routes, as zod schemas so the API document is generated from
 // them (server/utils/api/document.ts). The checks at the bottom keep each one the same shape as

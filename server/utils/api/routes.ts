@@ -1,14 +1,14 @@
 import { z } from 'zod'
-import { LoginBody, TeamBody } from '../../../shared/utils/accountSchemas'
-import { ArchiveImportFields, BuildBody, BuildPatch } from '../../../shared/utils/buildSchemas'
-import { EventListQuery, SubscriptionBody } from '../../../shared/utils/digestSchemas'
-import { CsvImportBody, CsvPreviewQuery, FileListQuery, UploadFields } from '../../../shared/utils/fileSchemas'
+import { LoginBody, TeamBody } from '#shared/utils/accountSchemas'
+import { ArchiveImportFields, BuildBody, BuildPatch } from '#shared/utils/buildSchemas'
+import { EventListQuery, SubscriptionBody } from '#shared/utils/digestSchemas'
+import { CsvImportBody, CsvPreviewQuery, FileListQuery, UploadFields } from '#shared/utils/fileSchemas'
 import {
   CommentBody, FindingCreate, FindingListQuery, FindingPatch, FixBody, FixPatch, MoveBody,
-} from '../../../shared/utils/findingSchemas'
-import { ReadingBody } from '../../../shared/utils/readingSchemas'
-import { CompareQuery, PlanQuery, RevisionBody, RevisionPatch, SolveBody, UnfreezeBody } from '../../../shared/utils/revisionSchemas'
-import { TargetBody, TargetListQuery, TargetOrderBody, TargetPatch } from '../../../shared/utils/targetSchemas'
+} from '#shared/utils/findingSchemas'
+import { ReadingBody } from '#shared/utils/readingSchemas'
+import { CompareQuery, PlanQuery, RevisionBody, RevisionPatch, SolveBody, UnfreezeBody } from '#shared/utils/revisionSchemas'
+import { TargetBody, TargetListQuery, TargetOrderBody, TargetPatch } from '#shared/utils/targetSchemas'
 import {
   ArchiveImportedOut, BoardOut, BuildEventOut, BuildOut, BuildUpdatedOut, CommentOut, ComparisonOut, CsvImportedOut, CsvPreviewOut,
   FileCreatedOut, FileListOut, FindingDetailOut, FindingOut, FixOut, MoveResultOut, OpenFindingsOut, ReadingCreatedOut,

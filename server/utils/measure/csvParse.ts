@@ -1,6 +1,6 @@
 import Papa from 'papaparse'
-import type { CsvPreview } from '../../../shared/types/files'
-import { parseNumberCell, parseTimeCell, planCsvImport, type CsvColumns, type CsvDefaults, type CsvPlan, type CsvProblem, type CsvRow } from '../../../shared/utils/csvReadings'
+import type { CsvPreview } from '#shared/types/files'
+import { parseNumberCell, parseTimeCell, planCsvImport, type CsvColumns, type CsvDefaults, type CsvPlan, type CsvProblem, type CsvRow } from '#shared/utils/csvReadings'
 
 // The CPU-bound half of the CSV import: decoding, parsing and checking a file's bytes. Pure (no
 // database, no request), so that it runs in a worker thread (server/workers/csv.ts) and the

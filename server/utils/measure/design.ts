@@ -1,14 +1,14 @@
 import { createError } from 'h3'
 import type { z } from 'zod'
-import type { ParameterView, SamplePlan, SolveResult, TargetDesign } from '../../../shared/types/api'
-import { tidyNumber } from '../../../shared/utils/cellStats'
-import { FormulaError } from '../../../shared/utils/derived'
+import type { ParameterView, SamplePlan, SolveResult, TargetDesign } from '#shared/types/api'
+import { tidyNumber } from '#shared/utils/cellStats'
+import { FormulaError } from '#shared/utils/derived'
 import {
   calibrate, calibrationNu, checkModel, DesignError, effectiveParameters, parameterKeyOf, predict, ratioOf,
   samplesNeeded, sensitivityOf, solveFor, uniqueParameterKey, unusableReason, type DesignParameter, type EffectiveParameter, type Goal,
-} from '../../../shared/utils/design'
-import type { ParameterField, SolveBody } from '../../../shared/utils/revisionSchemas'
-import { diffFromSI, fromSI, parseUnit } from '../../../shared/utils/units'
+} from '#shared/utils/design'
+import type { ParameterField, SolveBody } from '#shared/utils/revisionSchemas'
+import { diffFromSI, fromSI, parseUnit } from '#shared/utils/units'
 import type { RevisionRow, TargetRow } from '../../db/tables'
 import type { Db } from '../db'
 import { findRevision } from './revisions'

@@ -1,6 +1,6 @@
 import { createError } from 'h3'
 import type { Knex } from 'knex'
-import { assertNoCycle, checkFormula, FormulaError, parseFormula } from '../../../shared/utils/derived'
+import { assertNoCycle, checkFormula, FormulaError, parseFormula } from '#shared/utils/derived'
 
 // Derived targets' formulas checked against the build when they are saved: the keys must be
 // targets of the build, the formulas must not refer to each other in a circle, and the result

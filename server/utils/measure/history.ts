@@ -1,7 +1,7 @@
-import type { BudgetTerm, CantEvaluate, HistoryEntry } from '../../../shared/types/api'
-import { cellInUnit } from '../../../shared/utils/cellStats'
-import { evaluateDerivedTargets, type DerivedPoint, type DerivedSpec, type InputCell, type MeasuredSeries } from '../../../shared/utils/derivedCells'
-import { diffFromSI, fromSI, parseUnit, type UnitInfo } from '../../../shared/utils/units'
+import type { BudgetTerm, CantEvaluate, HistoryEntry } from '#shared/types/api'
+import { cellInUnit } from '#shared/utils/cellStats'
+import { evaluateDerivedTargets, type DerivedPoint, type DerivedSpec, type InputCell, type MeasuredSeries } from '#shared/utils/derivedCells'
+import { diffFromSI, fromSI, parseUnit, type UnitInfo } from '#shared/utils/units'
 import type { CellRow, TargetRow } from '../../db/tables'
 import { historyEntryOf } from './statsCache'
 

@@ -1,6 +1,6 @@
-import type { HistoryEntry } from '../../../shared/types/api'
-import { cellInUnit, decideCells, poolCell, type CellDecision, type CellStats, type SiRule } from '../../../shared/utils/cellStats'
-import type { UnitInfo } from '../../../shared/utils/units'
+import type { HistoryEntry } from '#shared/types/api'
+import { cellInUnit, decideCells, poolCell, type CellDecision, type CellStats, type SiRule } from '#shared/utils/cellStats'
+import type { UnitInfo } from '#shared/utils/units'
 import type { CellRow, StatsRow } from '../../db/tables'
 import type { Db } from '../db'
 

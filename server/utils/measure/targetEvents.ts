@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
-import { targetTransition, type TargetState } from '../../../shared/utils/targetEvents'
-import { parseUnit, toSI } from '../../../shared/utils/units'
+import { targetTransition, type TargetState } from '#shared/utils/targetEvents'
+import { parseUnit, toSI } from '#shared/utils/units'
 import type { TargetRow } from '../../db/tables'
 import type { Db } from '../db'
 import { recordEvent } from '../notify/events'

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { boardOrder } from '../../../shared/utils/lanes'
-import { compareRanks } from '../../../shared/utils/rank'
+import { boardOrder } from '#shared/utils/lanes'
+import { compareRanks } from '#shared/utils/rank'
 import { boardSlot, guessRank } from '../../../utils/boardSlot'
 import { makeCard } from '../../support/cards'
 

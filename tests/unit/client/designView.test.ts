@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import type { TargetDesign } from '../../../shared/types/api'
+import type { TargetDesign } from '#shared/types/api'
 import { calibrationTrend, changedParameters, parameterRows, parameterText, type RevisionParams } from '../../../utils/designView'
 
 const p = (key: string, value: number | string, unit: string | null = null, tolerance: number | null = null) => ({ key, name: key, value, unit, tolerance })

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import type { ForecastView } from '../../../shared/utils/forecast'
+import type { ForecastView } from '#shared/utils/forecast'
 import { axisLabel, forecastCrossing, forecastWords } from '../../../utils/forecastWords'
 
 const view = (over: Partial<ForecastView>): ForecastView => ({

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { findTemplate, type DesignTemplate } from '../../../shared/utils/designTemplates'
+import { findTemplate, type DesignTemplate } from '#shared/utils/designTemplates'
 import { fillModel, initialFill, keyOptions, modelTemplateList, slotOptions } from '../../../utils/modelTemplates'
 
 // The template picker's logic: which parameters fit which slot, the first guess, and the model

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import type { ReadingCreated } from '../../../shared/types/api'
+import type { ReadingCreated } from '#shared/types/api'
 import { readingSummary } from '../../../utils/readingSummary'
 
 const stats = { sd: 0.3, uA: 0.1, uB: null, u: 0.1, nuEff: 4 }
