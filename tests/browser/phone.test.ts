@@ -180,8 +180,8 @@ describe('phone layouts, refusals and the history chart in Chromium', () => {
 
   it('Team settings on a phone: every member\'s Role in view and changeable by the Owner', async () => {
     const { context, page } = await pageAt(browser, w.owner, PHONE, 'dark')
-    // this page has shown a 401 in two full runs (never alone, never logged by the server): should it
-    // again, say what the page showed and which requests were refused, with their words
+    // should the panel not come, say what the page showed and which requests were refused, with
+    // their words (so a 401 was traced to a panel's fetch that went without the session)
     const refused: string[] = []
     page.on('response', (res) => {
       if (res.status() >= 400) void res.text().then(body => refused.push(`${res.request().method()} ${res.url()} ${res.status()} ${body.slice(0, 200)}`), () => {})
