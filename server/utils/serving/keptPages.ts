@@ -16,7 +16,7 @@ import { LRUCache } from 'lru-cache'
 // inline scripts by their digests instead (csp.ts). A page that rendered with an error (a fetch
 // that failed, a status other than 200) is not kept.
 
-export const PAGE_TTL_MS = 60_000
+const PAGE_TTL_MS = 60_000
 const MAX_BYTES = 64 * 1024 * 1024
 const BUILD_PAGE = /^\/builds\/([^/?#]+)(?:[/?#]|$)/
 
